@@ -1,0 +1,156 @@
+"""The ``thermoplane`` command: serve the dashboard, or answer from the shell.
+
+Errors print one line to stderr and exit with status 2; no traceback reaches a user.
+"""
+
+from __future__ import annotations
+
+import argparse
+import json
+import math
+import sys
+
+import physics as ph
+
+EXIT_USAGE = 2
+
+
+class CliError(Exception):
+    """A problem the user can fix; printed on one line."""
+
+
+class _Parser(argparse.ArgumentParser):
+    """argparse, but a usage error is one line on stderr (exit 2), like every other error."""
+
+    def error(self, message):  # noqa: D401 - argparse's hook
+        print(f"{self.prog}: error: {message} (see {self.prog} --help)", file=sys.stderr)
+        sys.exit(EXIT_USAGE)
+
+
+def _composition(args) -> ph.Composition:
+    if getattr(args, "mix", None):
+        if any(v is not None for v in (args.X, args.Y, args.Z)):
+            raise CliError("give either --mix or --X/--Y/--Z, not both")
+        return ph.parse_mix(args.mix)
+    X = 0.70 if args.X is None else args.X
+    Y = 0.28 if args.Y is None else args.Y
+    Z = (1.0 - X - Y) if args.Z is None else args.Z
+    return ph.Composition.from_xyz(X, Y, Z, metals=args.metals)
+
+
+def _physics_options(args) -> dict:
+    return {k: getattr(args, k) for k in ph.OPTIONS if getattr(args, k, None) is not None}
+
+
+def _add_composition(p: argparse.ArgumentParser) -> None:
+    g = p.add_argument_group("composition (default X=0.70, Y=0.28, Z=0.02)")
+    g.add_argument("--X", type=float, help="hydrogen mass fraction")
+    g.add_argument("--Y", type=float, help="helium mass fraction")
+    g.add_argument("--Z", type=float, help="metal mass fraction (default 1 - X - Y)")
+    g.add_argument("--metals", default="solar-like", choices=list(ph.METAL_MIXTURES),
+                   help="how Z is split among metals (default solar-like)")
+    g.add_argument("--mix", help='any mixture of nuclides, e.g. "H-1=0.7,He-4=0.28,O-16=0.02"')
+
+
+def _add_physics(p: argparse.ArgumentParser) -> None:
+    g = p.add_argument_group("equation of state (defaults: the full physics)")
+    g.add_argument("--electrons", choices=ph.OPTIONS["electrons"], help="electron treatment")
+    g.add_argument("--ionization", choices=ph.OPTIONS["ionization"], help="ionization treatment")
+    g.add_argument("--coulomb", action=argparse.BooleanOptionalAction, default=None,
+                   help="Coulomb corrections")
+    g.add_argument("--pairs", action=argparse.BooleanOptionalAction, default=None,
+                   help="electron-positron pairs")
+
+
+def _positive_float(text: str) -> float:
+    try:
+        value = float(text)
+    except ValueError:
+        raise argparse.ArgumentTypeError(f"{text!r} is not a number") from None
+    if not math.isfinite(value) or value <= 0:
+        raise argparse.ArgumentTypeError(f"{text!r} must be a finite number > 0")
+    return value
+
+
+def cmd_serve(args) -> int:
+    from .main import create_app
+    if args.host not in ("127.0.0.1", "localhost", "::1"):
+        print(f"Thermoplane is reachable from the network at http://{args.host}:{args.port}/", file=sys.stderr)
+    print(f"Thermoplane: open http://{args.host}:{args.port}/ in a browser (Ctrl+C stops it)", file=sys.stderr)
+    app = create_app()
+    app.run(host=args.host, port=args.port, debug=args.debug, use_reloader=args.debug)
+    return 0
+
+
+def cmd_point(args) -> int:
+    comp = _composition(args)
+    state = ph.evaluate(args.rho, args.T, comp, **_physics_options(args))
+    values = state.at(())
+    if args.json:
+        out = {"composition": comp.to_dict(), "mu": comp.mu, "mu_e": comp.mu_e, "mu_ion": comp.mu_ion,
+               "state": values, "units": {k: ph.FIELD_UNITS[k] for k in values}}
+        print(json.dumps(out, indent=2))
+    else:
+        print(f"composition: {comp!r}  (mu = {comp.mu:.5g}, mu_e = {comp.mu_e:.5g}, mu_ion = {comp.mu_ion:.5g})")
+        for name, value in values.items():
+            print(f"  {name:<12} {value:>14.6g}  {ph.FIELD_UNITS[name]:<22} {ph.FIELD_DESCRIPTIONS[name]}")
+    return 0
+
+
+def cmd_map(args) -> int:
+    from .callbacks.map import map_figure
+    from .state import DEFAULT_VIEW
+    comp = _composition(args)
+    fig = map_figure(comp, DEFAULT_VIEW)
+    fig.write_html(args.output, include_plotlyjs=True, full_html=True)
+    print(f"wrote {args.output}", file=sys.stderr)
+    return 0
+
+
+def build_parser() -> argparse.ArgumentParser:
+    parser = _Parser(
+        prog="thermoplane",
+        description="The density-temperature plane of stellar matter: a dashboard and command-line answers.")
+    sub = parser.add_subparsers(dest="command", metavar="{serve,point,map}")
+
+    p = sub.add_parser("serve", help="start the dashboard", description="Start the dashboard in this process.")
+    p.add_argument("--host", default="127.0.0.1",
+                   help="address to bind (default 127.0.0.1: this machine only; 0.0.0.0 exposes it to the network)")
+    p.add_argument("--port", type=int, default=8050, help="port (default 8050)")
+    p.add_argument("--debug", action="store_true", help="Dash debug mode with hot reload (never on a shared server)")
+    p.set_defaults(func=cmd_serve)
+
+    p = sub.add_parser("point", help="the full state at one (rho, T)",
+                       description="Every thermodynamic quantity at one density and temperature, in cgs.")
+    p.add_argument("--rho", type=_positive_float, required=True, help="density, g cm^-3")
+    p.add_argument("--T", type=_positive_float, required=True, help="temperature, K")
+    _add_composition(p)
+    _add_physics(p)
+    p.add_argument("--json", action="store_true", help="print JSON instead of a table")
+    p.set_defaults(func=cmd_point)
+
+    p = sub.add_parser("map", help="write the map as a standalone interactive HTML figure",
+                       description="Write the density-temperature map as one HTML file that opens offline.")
+    _add_composition(p)
+    p.add_argument("-o", "--output", default="thermoplane-map.html", help="output file (default thermoplane-map.html)")
+    p.set_defaults(func=cmd_map)
+    return parser
+
+
+def main(argv: list[str] | None = None) -> int:
+    parser = build_parser()
+    args = parser.parse_args(argv)
+    if not getattr(args, "func", None):
+        parser.print_help()
+        return EXIT_USAGE
+    try:
+        return args.func(args)
+    except (ValueError, CliError, OSError) as err:
+        print(f"thermoplane: error: {err}", file=sys.stderr)
+        return EXIT_USAGE
+    except KeyboardInterrupt:
+        return 130
+
+
+if __name__ == "__main__":  # pragma: no cover
+    sys.exit(main())

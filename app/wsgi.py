@@ -1,0 +1,6 @@
+"""WSGI entry point for a group server: ``gunicorn app.wsgi:server``."""
+
+from .main import create_app
+
+app = create_app()
+server = app.server

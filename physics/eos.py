@@ -1,0 +1,246 @@
+"""The equation of state: every thermodynamic quantity at (rho, T) for a
+composition, from the sum of its physical parts.
+
+The question this module answers: what state is matter in at density rho and
+temperature T, and how does it respond to compression and heating?
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, fields
+
+import numpy as np
+
+from . import constants as const
+from .composition import Composition
+from .thermo import Part, ideal_ions, radiation, response
+
+__all__ = ["ThermoState", "evaluate", "equality_temperature", "FIELD_UNITS", "FIELD_DESCRIPTIONS",
+           "OPTIONS", "validate_options"]
+
+#: Allowed values of each physics option; the first is the default.
+OPTIONS = {
+    "electrons": ("classical", "fermi"),
+    "ionization": ("full", "saha"),
+    "coulomb": (False, True),
+    "pairs": (False, True),
+}
+DEFAULTS = {key: values[0] for key, values in OPTIONS.items()}
+
+
+#: cgs unit of every ThermoState field (for display and export).
+FIELD_UNITS = {
+    "rho": "g cm^-3", "T": "K",
+    "P": "dyn cm^-2", "P_gas": "dyn cm^-2", "P_rad": "dyn cm^-2", "P_ion": "dyn cm^-2",
+    "P_e": "dyn cm^-2", "P_coul": "dyn cm^-2",
+    "E": "erg g^-1", "S": "erg g^-1 K^-1",
+    "beta": "", "eta": "", "ye": "", "chi_rho": "", "chi_T": "",
+    "c_V": "erg g^-1 K^-1", "c_P": "erg g^-1 K^-1",
+    "gamma1": "", "gamma3": "", "nabla_ad": "", "sound_speed": "cm s^-1", "Gamma": "",
+    "dP_drho": "dyn cm^-2 / (g cm^-3)", "dP_dT": "dyn cm^-2 K^-1",
+    "dE_drho": "erg g^-1 / (g cm^-3)", "dS_dT": "erg g^-1 K^-2",
+    "ion_H": "", "ion_He1": "", "ion_He2": "", "mean_Z": "",
+    "n_minus": "cm^-3", "n_plus": "cm^-3",
+}
+
+FIELD_DESCRIPTIONS = {
+    "rho": "density", "T": "temperature",
+    "P": "total pressure", "P_gas": "gas pressure (ions + electrons/positrons + Coulomb)",
+    "P_rad": "radiation pressure", "P_ion": "ion pressure", "P_e": "electron + positron pressure",
+    "P_coul": "Coulomb correction to the pressure",
+    "E": "specific internal energy", "S": "specific entropy",
+    "beta": "P_gas / P", "eta": "electron degeneracy parameter (mu_e - m_e c^2)/kT",
+    "ye": "free electrons per nucleon, net of positrons",
+    "chi_rho": "(dlnP/dlnrho)_T", "chi_T": "(dlnP/dlnT)_rho",
+    "c_V": "specific heat at constant volume", "c_P": "specific heat at constant pressure",
+    "gamma1": "first adiabatic exponent", "gamma3": "third adiabatic exponent",
+    "nabla_ad": "adiabatic temperature gradient", "sound_speed": "adiabatic sound speed",
+    "Gamma": "ion coupling parameter",
+    "dP_drho": "(dP/drho)_T", "dP_dT": "(dP/dT)_rho", "dE_drho": "(dE/drho)_T", "dS_dT": "(dS/dT)_rho",
+    "ion_H": "fraction of hydrogen ionized", "ion_He1": "fraction of helium at least singly ionized",
+    "ion_He2": "fraction of helium doubly ionized", "mean_Z": "mean free electrons per nucleus",
+    "n_minus": "electron number density", "n_plus": "positron number density",
+}
+
+
+@dataclass
+class ThermoState:
+    """The full thermodynamic state at each (rho, T); every field has the broadcast shape.
+
+    Units are cgs, per unit mass where specific (see :data:`FIELD_UNITS`).
+    """
+
+    rho: np.ndarray
+    T: np.ndarray
+    P: np.ndarray
+    P_gas: np.ndarray
+    P_rad: np.ndarray
+    P_ion: np.ndarray
+    P_e: np.ndarray
+    P_coul: np.ndarray
+    E: np.ndarray
+    S: np.ndarray
+    beta: np.ndarray
+    eta: np.ndarray
+    ye: np.ndarray
+    chi_rho: np.ndarray
+    chi_T: np.ndarray
+    c_V: np.ndarray
+    c_P: np.ndarray
+    gamma1: np.ndarray
+    gamma3: np.ndarray
+    nabla_ad: np.ndarray
+    sound_speed: np.ndarray
+    Gamma: np.ndarray
+    dP_drho: np.ndarray
+    dP_dT: np.ndarray
+    dE_drho: np.ndarray
+    dS_dT: np.ndarray
+    ion_H: np.ndarray
+    ion_He1: np.ndarray
+    ion_He2: np.ndarray
+    mean_Z: np.ndarray
+    n_minus: np.ndarray
+    n_plus: np.ndarray
+
+    def as_dict(self) -> dict[str, np.ndarray]:
+        return {f.name: getattr(self, f.name) for f in fields(self)}
+
+    def at(self, index) -> dict[str, float]:
+        """Plain floats of every field at one index (for readouts and JSON)."""
+        return {name: float(np.asarray(value)[index]) for name, value in self.as_dict().items()}
+
+
+def validate_options(**options) -> dict:
+    """Fill in defaults and check every physics option; ValueError names a bad one."""
+    out = dict(DEFAULTS)
+    for key, value in options.items():
+        if key not in OPTIONS:
+            raise ValueError(f"unknown physics option {key!r}; options are {', '.join(OPTIONS)}")
+        if value not in OPTIONS[key] or type(value) is not type(OPTIONS[key][0]):
+            allowed = " or ".join(repr(v) for v in OPTIONS[key])
+            raise ValueError(f"option {key}={value!r} is not allowed; use {allowed}")
+        out[key] = value
+    return out
+
+
+def _check_positive(name: str, value) -> np.ndarray:
+    arr = np.asarray(value, dtype=float)
+    bad = ~np.isfinite(arr) | (arr <= 0)
+    if np.any(bad):
+        example = arr[bad].flat[0]
+        raise ValueError(f"{name} must be finite and > 0; got {example!r}")
+    return arr
+
+
+def _classical_electrons(rho, T, ye):
+    """Fully ionized non-degenerate electrons (Maxwell–Boltzmann, spin weight 2)."""
+    k, m_u = const.k_B, const.m_u
+    N = ye / m_u                                   # electrons per gram
+    n_e = rho * N
+    P = n_e * k * T
+    lam3 = (const.h**2 / (2.0 * np.pi * const.m_e * k * T)) ** 1.5
+    eta = np.log(n_e * lam3 / 2.0)
+    part = Part(P=P, E=1.5 * N * k * T, S=N * k * (2.5 - eta),
+                P_rho=N * k * T, P_T=n_e * k,
+                E_rho=np.zeros_like(P), E_T=1.5 * N * k + 0.0 * P,
+                S_rho=-N * k / rho, S_T=1.5 * N * k / T)
+    return part, eta, n_e
+
+
+def evaluate(rho, T, comp: Composition, **options) -> ThermoState:
+    """The thermodynamic state of stellar matter at density ``rho`` and temperature ``T``.
+
+    Parameters
+    ----------
+    rho : array_like
+        Density, g cm^-3, > 0.
+    T : array_like
+        Temperature, K, > 0. Broadcasts against ``rho``.
+    comp : Composition
+        Mass fractions of the nuclides.
+    **options
+        ``electrons`` ("classical"), ``ionization`` ("full"), ``coulomb``
+        (False), ``pairs`` (False).
+
+    Returns
+    -------
+    ThermoState
+
+    Raises
+    ------
+    ValueError
+        Non-positive or non-finite rho or T, or an unknown option.
+
+    Notes
+    -----
+    P = P_ion + P_e + P_coul + P_rad; response functions from
+    :func:`physics.thermo.response`.
+
+    Examples
+    --------
+    >>> from physics import Composition
+    >>> s = evaluate(1.0, 1e7, Composition({"H-1": 1.0}), electrons="classical", ionization="full")
+    >>> round(float(s.beta), 6)
+    0.999837
+    """
+    opts = validate_options(**options)
+    if not isinstance(comp, Composition):
+        raise ValueError(f"comp must be a Composition, got {type(comp).__name__}")
+    rho = _check_positive("rho", rho)
+    T = _check_positive("T", T)
+    rho, T = np.broadcast_arrays(rho, T)
+    rho = np.array(rho, dtype=float)
+    T = np.array(T, dtype=float)
+
+    rad = radiation(rho, T, const.a_rad)
+    ions = ideal_ions(rho, T, comp.X, comp.A, const.k_B, const.m_u, const.h)
+    electrons, eta, n_e = _classical_electrons(rho, T, comp.ye)
+    zero = np.zeros_like(rho)
+    gas = ions + electrons
+    total = gas + rad
+    resp = response(total, rho, T)
+
+    Z = comp.Z
+    n_ion = rho / (comp.mu_ion * const.m_u)
+    a_i = (3.0 / (4.0 * np.pi * n_ion)) ** (1.0 / 3.0)
+    z53 = float(np.sum(comp.X / comp.A * Z ** (5.0 / 3.0)) * comp.mu_ion)
+    ye_mean_z = comp.ye * comp.mu_ion
+    # Linear mixing rule: Gamma = Gamma_e <Z^(5/3)>, Gamma_e = e^2 / (a_e k T)
+    a_e = a_i / ye_mean_z ** (1.0 / 3.0)
+    Gamma = const.e_esu**2 / (a_e * const.k_B * T) * z53
+    one = np.ones_like(rho)
+    return ThermoState(
+        rho=rho, T=T, P=total.P, P_gas=gas.P, P_rad=rad.P, P_ion=ions.P, P_e=electrons.P,
+        P_coul=zero, E=total.E, S=total.S, beta=gas.P / total.P, eta=eta, ye=comp.ye * one,
+        Gamma=Gamma, dP_drho=total.P_rho, dP_dT=total.P_T, dE_drho=total.E_rho, dS_dT=total.S_T,
+        ion_H=one, ion_He1=one, ion_He2=one, mean_Z=ye_mean_z * one, n_minus=n_e, n_plus=zero,
+        **resp)
+
+
+def equality_temperature(rho, comp: Composition, **options) -> np.ndarray:
+    """Temperature at which radiation pressure equals gas pressure, vectorised over rho.
+
+    Notes
+    -----
+    Solves log(P_rad / P_gas) = 0 in log T by bisection in [1e3, 1e12] K for
+    every rho at once. For a non-degenerate, fully ionized gas the answer is
+    T = (3 k rho / (a mu m_u))^(1/3) = 3.21e7 K (rho/mu)^(1/3).
+    NaN where no root lies in the bracket.
+    """
+    rho = _check_positive("rho", rho)
+    lo = np.full(rho.shape, 3.0)
+    hi = np.full(rho.shape, 12.0)
+
+    def g(logT):
+        s = evaluate(rho, 10.0**logT, comp, **options)
+        return np.log(s.P_rad / s.P_gas)
+
+    g_lo, g_hi = g(lo), g(hi)
+    ok = (g_lo < 0) & (g_hi > 0)
+    for _ in range(48):      # bracket width 9 dex / 2^48: far below 1e-12 dex
+        mid = 0.5 * (lo + hi)
+        below = g(mid) < 0
+        lo = np.where(below, mid, lo)
+        hi = np.where(below, hi, mid)
+    return np.where(ok, 10.0 ** (0.5 * (lo + hi)), np.nan)

@@ -1,0 +1,111 @@
+"""Thermodynamic bookkeeping shared by every part of the equation of state.
+
+Each physical part (radiation, ions, electrons, Coulomb, ionization) returns a
+:class:`Part`: pressure, specific energy and specific entropy with their
+partial derivatives in rho and T. Parts add; the response functions
+(chi_rho, chi_T, c_V, Gamma_1, nabla_ad, ...) follow from the sum in one place,
+:func:`response`, so every option combination uses the same formulas.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, fields
+
+import numpy as np
+
+__all__ = ["Part", "response", "radiation", "ideal_ions"]
+
+
+@dataclass
+class Part:
+    """P (dyn cm^-2), E (erg g^-1), S (erg g^-1 K^-1) and their partials.
+
+    ``P_rho`` is (dP/drho)_T, ``P_T`` is (dP/dT)_rho, and likewise for E, S.
+    """
+
+    P: np.ndarray
+    E: np.ndarray
+    S: np.ndarray
+    P_rho: np.ndarray
+    P_T: np.ndarray
+    E_rho: np.ndarray
+    E_T: np.ndarray
+    S_rho: np.ndarray
+    S_T: np.ndarray
+
+    def __add__(self, other: "Part") -> "Part":
+        return Part(*(getattr(self, f.name) + getattr(other, f.name) for f in fields(self)))
+
+    @classmethod
+    def zero(cls, shape) -> "Part":
+        z = np.zeros(shape)
+        return cls(*(z for _ in fields(cls)))
+
+
+def response(total: Part, rho: np.ndarray, T: np.ndarray) -> dict[str, np.ndarray]:
+    """Response functions of the summed equation of state.
+
+    Notes
+    -----
+    Cox & Giuli (1968), ch. 9; Kippenhahn, Weigert & Weiss (2012), sec. 4.1:
+
+    .. math::
+        \\chi_\\rho = (\\partial\\ln P/\\partial\\ln\\rho)_T,\\;
+        \\chi_T = (\\partial\\ln P/\\partial\\ln T)_\\rho,\\;
+        c_P = c_V + P\\chi_T^2/(\\rho T\\chi_\\rho),\\;
+        \\Gamma_1 = \\chi_\\rho c_P/c_V,\\;
+        \\Gamma_3 - 1 = P\\chi_T/(\\rho T c_V),\\;
+        \\nabla_{ad} = P\\chi_T/(\\rho T c_P \\chi_\\rho)
+    """
+    P = total.P
+    chi_rho = rho * total.P_rho / P
+    chi_T = T * total.P_T / P
+    c_V = total.E_T
+    c_P = c_V + P * chi_T**2 / (rho * T * chi_rho)
+    gamma1 = chi_rho * c_P / c_V
+    gamma3 = 1.0 + P * chi_T / (rho * T * c_V)
+    nabla_ad = P * chi_T / (rho * T * c_P * chi_rho)
+    sound_speed = np.sqrt(np.maximum(gamma1, 0.0) * P / rho)
+    return dict(chi_rho=chi_rho, chi_T=chi_T, c_V=c_V, c_P=c_P, gamma1=gamma1,
+                gamma3=gamma3, nabla_ad=nabla_ad, sound_speed=sound_speed)
+
+
+def radiation(rho: np.ndarray, T: np.ndarray, a_rad: float) -> Part:
+    """Black-body radiation in equilibrium with matter.
+
+    Notes
+    -----
+    P = a T^4 / 3, E = a T^4 / rho, S = 4 a T^3 / (3 rho) (Kippenhahn, Weigert
+    & Weiss 2012, sec. 13.2).
+    """
+    aT3 = a_rad * T**3
+    aT4 = aT3 * T
+    return Part(P=aT4 / 3.0, E=aT4 / rho, S=4.0 * aT3 / (3.0 * rho),
+                P_rho=np.zeros_like(rho * T), P_T=4.0 * aT3 / 3.0,
+                E_rho=-aT4 / rho**2, E_T=4.0 * aT3 / rho,
+                S_rho=-4.0 * aT3 / (3.0 * rho**2), S_T=4.0 * a_rad * T**2 / rho)
+
+
+def ideal_ions(rho: np.ndarray, T: np.ndarray, X: np.ndarray, A: np.ndarray,
+               k_B: float, m_u: float, h: float) -> Part:
+    """Classical ideal gas of nuclei (Maxwell–Boltzmann, Sackur–Tetrode entropy).
+
+    Notes
+    -----
+    P = n_ion k T, E = (3/2) n_ion k T / rho and, per nuclide i with number
+    density n_i and mass m_i = A_i m_u,
+    S = sum_i (n_i k / rho) [5/2 + ln((2 pi m_i k T / h^2)^{3/2} / n_i)]
+    (Sackur 1911, Tetrode 1912). Nuclear spin weights are left out: they add
+    a constant to S and change no derivative.
+    """
+    per_mass = X / (A * m_u)                     # nuclei per gram of each nuclide
+    N = float(np.sum(per_mass))                  # nuclei per gram, 1/(mu_ion m_u)
+    kT = k_B * T
+    P = rho * N * kT
+    E = 1.5 * N * kT
+    # sum_i N_i [5/2 + ln(q_i / n_i)], q_i = (2 pi A_i m_u k T/h^2)^(3/2); split so T, rho stay arrays
+    const = float(np.sum(per_mass * (2.5 + 1.5 * np.log(2.0 * np.pi * A * m_u * k_B / h**2) - np.log(per_mass))))
+    S = k_B * (const + N * (1.5 * np.log(T) - np.log(rho)))
+    return Part(P=P, E=E + 0.0 * rho, S=S, P_rho=N * kT + 0.0 * rho, P_T=rho * N * k_B,
+                E_rho=np.zeros_like(P), E_T=1.5 * N * k_B + 0.0 * P,
+                S_rho=-k_B * N / rho + 0.0 * T, S_T=1.5 * k_B * N / T + 0.0 * rho)
