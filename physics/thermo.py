@@ -65,7 +65,7 @@ def response(total: Part, rho: np.ndarray, T: np.ndarray) -> dict[str, np.ndarra
     gamma1 = chi_rho * c_P / c_V
     gamma3 = 1.0 + P * chi_T / (rho * T * c_V)
     nabla_ad = P * chi_T / (rho * T * c_P * chi_rho)
-    sound_speed = np.sqrt(np.maximum(gamma1, 0.0) * P / rho)
+    sound_speed = np.sqrt(np.maximum(gamma1 * P / rho, 0.0))
     return dict(chi_rho=chi_rho, chi_T=chi_T, c_V=c_V, c_P=c_P, gamma1=gamma1,
                 gamma3=gamma3, nabla_ad=nabla_ad, sound_speed=sound_speed)
 

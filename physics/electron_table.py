@@ -1,0 +1,508 @@
+"""Tabulated electron–positron gas: fast and thermodynamically consistent.
+
+Which question this module answers: the same as :mod:`physics.electrons`
+(pressure, energy, entropy, chemical potential and their derivatives of the
+electron–positron gas at given net electron density and temperature), at a
+small fraction of the cost, with every quantity taken from ONE interpolated
+free energy so that the Maxwell relations hold to rounding.
+
+Method, after Timmes & Swesty (2000, ApJS 126, 501): the Helmholtz free
+energy per unit volume
+
+    f(n, T) = n eta k T - P,   (df/dn)_T = eta k T,   (df/dT)_n = -S,
+
+(n = net electron density, eta = chemical potential without rest mass over
+kT, E includes the pairs' rest mass so that f = E - T S) is tabulated on a
+grid uniform in u = ln n and v = ln T, with F, F_u, F_v, F_uu, F_vv, F_uv,
+F_uuv, F_uvv, F_uuvv at every node, and interpolated with biquintic Hermite
+polynomials (Timmes & Swesty 2000, eqs. 4–9).  Everything is a derivative of
+the interpolant:
+
+    eta = F_u / (n k T),  P = F_u - F,  S = -F_v / T,  E = F - F_v,
+    (dP/dn)_T = (F_uu - F_u)/n,  (dP/dT)_n = (F_uv - F_v)/T,
+    (dE/dn)_T = (F_u - F_uv)/n,  (dE/dT)_n = -(F_vv - F_v)/T.
+
+With pairs the free energy holds a large part that does not depend on n, the
+zero-charge pair gas f_0(T) = -P(mu = -m_e c^2, T).  Left inside F it would
+drown the n-dependence (eta, dP/dn) in rounding wherever pairs outnumber the
+net electrons by many orders of magnitude, so it is tabulated apart as a 1-D
+quintic Hermite in v, and the 2-D table holds g = f - f_0(T).  Where
+zeta = eta + 1/theta is small, g and its T-derivatives are formed from
+n-derivatives by the even-in-n expansions (Gibbs–Duhem, dP = S dT + n dmu)
+
+    Delta P = P - P_0 ~ k T (5/8 zeta n - 1/8 zeta^2 dn/deta),
+    phi ~ 3/4 phi_u - 1/8 phi_uu   for phi = g_v, g_vv (phi even in n, phi(0) = 0),
+
+which need no subtraction of nearly equal numbers.
+
+Node data come from :func:`physics.electrons.electron_state` (third and
+fourth derivatives by five-point central differences in v of the analytic
+F_uu and F_uv).  Outside the table the exact routine is called for those
+points only.
+"""
+
+import argparse
+import functools
+import sys
+from pathlib import Path
+
+import numpy as np
+
+from . import constants as const
+from .electrons import ElectronGas, ElectronState, _prepare, electron_gas, electron_state
+
+__all__ = ["table_state", "in_table", "build_table", "TABLE_RANGE"]
+
+_MC2 = const.m_e * const.c ** 2
+_K = const.k_B
+#: (log10 n_min, log10 n_max, log10 T_min, log10 T_max) of the table
+TABLE_RANGE = (4.0, 37.0, 3.0, 11.5)
+_DATA = Path(__file__).resolve().parent / "data"
+_FILES = {True: "electron_table_pairs.npz", False: "electron_table_nopairs.npz"}
+_LN10 = np.log(10.0)
+#: below this zeta the expansions replace the subtractions P - P_0, S - S_0, ...
+_ZETA_SERIES = 1e-2
+#: 1/theta above which the zero-charge pair gas is below ~1e-280 of anything: taken as 0
+_INV_THETA_MAX = 640.0
+#: nodes of the 1-D zero-charge table per 2-D cell in v
+_F0_REFINE = 50
+
+
+def _hermite_matrix(order):
+    """Monomial coefficients from Hermite data on [0, 1].
+
+    order 2 (quintic): data (p0, p0', p0'', p1, p1', p1''); order 1 (cubic): (p0, p0', p1, p1').
+    Returns M with coefficients c = M @ data, p(z) = sum_k c_k z^k.
+    """
+    deg = 2 * order + 1
+    rows = []
+    for z in (0.0, 1.0):
+        for d in range(order + 1):
+            row = []
+            for k in range(deg + 1):
+                if k < d:
+                    row.append(0.0)
+                else:
+                    row.append(float(np.prod(np.arange(k - d + 1, k + 1))) * z ** (k - d))
+            rows.append(row)
+    return np.linalg.inv(np.array(rows))
+
+
+_M5 = _hermite_matrix(2)
+_M3 = _hermite_matrix(1)
+
+
+def _grid(dlogn, dlogT):
+    ln0, ln1, lt0, lt1 = TABLE_RANGE
+    nu = int(round((ln1 - ln0) / dlogn)) + 1
+    nv = int(round((lt1 - lt0) / dlogT)) + 1
+    return np.linspace(ln0, ln1, nu) * _LN10, np.linspace(lt0, lt1, nv) * _LN10
+
+
+def _node_quantities(n, T, pairs):
+    """F_u, F_uu, F_uv at (n, T) from the exact state, and the state itself."""
+    s = electron_state(n, T, pairs)
+    kT = _K * T
+    Fu = n * s.eta * kT
+    Fuu = Fu + n * n * kT * s.deta_dn
+    Fuv = n * T * (_K * s.eta + kT * s.deta_dT)
+    return s, Fu, Fuu, Fuv
+
+
+def _zero_charge(T, pairs):
+    """P_0, S_0 and (dE/dT) along n = 0 (mu = -m_e c^2): the n-independent pair gas."""
+    P0, S0, C0 = (np.zeros_like(T) for _ in range(3))
+    if not pairs:
+        return P0, S0, C0
+    inv_theta = _MC2 / (_K * T)
+    ok = inv_theta < _INV_THETA_MAX
+    g = electron_gas(-inv_theta[ok], T[ok], pairs=True)
+    deta_dT = -g.dn_dT / g.dn_deta
+    P0[ok], S0[ok], C0[ok] = g.P, g.S, g.dE_dT + g.dE_deta * deta_dT
+    return P0, S0, C0
+
+
+#: log10 T range over which the rest-mass shift c(T) rises from 0 to m_e c^2 (no pairs below
+#: ~10^7.9 K matter for n >= 1e4 cm^-3; below 10^7.3 K the shift would cost eta digits)
+_SHIFT = (7.3, 7.9)
+
+
+def _rest_shift(v):
+    """c(T) = m_e c^2 s(x) and its first two v-derivatives; s the C^3 smootherstep in log10 T."""
+    w = (_SHIFT[1] - _SHIFT[0]) * _LN10
+    x = np.clip((v - _SHIFT[0] * _LN10) / w, 0.0, 1.0)
+    s0 = x ** 4 * (35.0 - 84.0 * x + 70.0 * x * x - 20.0 * x ** 3)
+    s1 = 140.0 * x ** 3 * (1.0 - x) ** 3 / w
+    s2 = 420.0 * x * x * (1.0 - x) ** 2 * (1.0 - 2.0 * x) / (w * w)
+    return _MC2 * s0, _MC2 * s1, _MC2 * s2
+
+
+def _zero_charge_dn_deta(T):
+    """(dn_net/deta)_T at zero charge (the slope a1 of n_net = a1 zeta + ...)."""
+    return electron_gas(-_MC2 / (_K * T), T, pairs=True).dn_deta
+
+
+def build_table(pairs, dlogn=0.05, dlogT=0.05, fd_step=1e-2):
+    """Node data of the free-energy table.
+
+    Parameters
+    ----------
+    pairs : bool
+        Include thermally created positrons.
+    dlogn, dlogT : float, optional
+        Grid spacing in log10 n and log10 T (dex) over :data:`TABLE_RANGE`.
+    fd_step : float, optional
+        Step in v = ln T of the five-point differences for F_uuv, F_uvv, F_uuvv.
+
+    Returns
+    -------
+    dict
+        ``u``, ``v`` (node coordinates, ln n and ln T), ``G`` (9, nu, nv): g, g_u,
+        g_v, g_uu, g_vv, g_uv, g_uuv, g_uvv, g_uuvv of g = f - f_0 (with pairs,
+        of h = f - f_0 + m_e c^2 n); ``F0`` (3, nv):
+        f_0, f_0v, f_0vv; ``ln_n_plus`` (nu, nv, float32, floored at ln 1e-300);
+        ``pairs``.
+
+    Raises
+    ------
+    ValueError
+        If a spacing or the step is not positive.
+
+    Notes
+    -----
+    F_u = n f_n, F_uu = n f_n + n^2 f_nn, F_v = T f_T, F_vv = T f_T + T^2 f_TT,
+    F_uv = n T f_nT, with f_n = eta k T, f_nn = k T (deta/dn)_T,
+    f_nT = k eta + k T (deta/dT)_n, f_T = -S, f_TT = -(dE/dT)_n / T.
+    F_uuv, F_uvv, F_uuvv are fourth-order central differences in v of F_uu and
+    F_uv (error ~ step^4, rounding ~ 1e-13 / step^2).
+
+    References
+    ----------
+    Timmes, F. X. & Swesty, F. D. 2000, ApJS 126, 501.
+    """
+    for name, val in (("dlogn", dlogn), ("dlogT", dlogT), ("fd_step", fd_step)):
+        if not (np.isfinite(val) and val > 0):
+            raise ValueError(f"{name} must be a positive number, got {val!r}")
+    u, v = _grid(dlogn, dlogT)
+    U, V = np.meshgrid(u, v, indexing="ij")
+    n, T = np.exp(U).ravel(), np.exp(V).ravel()
+    s, Fu, Fuu, Fuv = _node_quantities(n, T, pairs)
+    uu = {0: Fuu}
+    uv = {0: Fuv}
+    for k in (-2, -1, 1, 2):
+        _, _, uu[k], uv[k] = _node_quantities(n, T * np.exp(k * fd_step), pairs)
+    h = fd_step
+    d1 = lambda a: (a[-2] - 8.0 * a[-1] + 8.0 * a[1] - a[2]) / (12.0 * h)               # noqa: E731
+    d2 = lambda a: (-a[-2] + 16.0 * a[-1] - 30.0 * a[0] + 16.0 * a[1] - a[2]) / (12.0 * h * h)  # noqa: E731
+    Fuuv, Fuvv, Fuuvv = d1(uu), d1(uv), d2(uu)
+
+    P0, S0, C0 = _zero_charge(T, pairs)
+    P, S, dE_dT_n = s.gas.P, s.gas.S, s.dE_dT_n
+    kT = _K * T
+    # direct differences from the zero-charge gas (exact where zeta is not small)
+    dP = P - P0
+    Gv = -T * (S - S0)
+    Gvv = Gv - T * (dE_dT_n - C0)
+    if pairs:
+        # zeta = eta + 1/theta loses digits when small; there n = a1 zeta + a3 zeta^3 with
+        # a1 = dn/deta at zero charge, so zeta = 3 n / (2 a1 + dn/deta) + O(zeta^5)
+        dn_deta = 1.0 / s.deta_dn
+        a1 = np.full_like(n, np.inf)
+        ok = P0 > 0
+        a1[ok] = _zero_charge_dn_deta(T[ok])
+        zeta = s.eta + _MC2 / kT
+        zeta = np.where(zeta < 1e-3, 3.0 * n / (2.0 * a1 + dn_deta), zeta)
+        small = (zeta < _ZETA_SERIES) & ok
+        dP = np.where(small, kT * (0.625 * zeta * n - 0.125 * zeta * zeta * dn_deta), dP)
+        Gv = np.where(small, 0.75 * Fuv - 0.125 * Fuuv, Gv)
+        Gvv = np.where(small, 0.75 * Fuvv - 0.125 * Fuuvv, Gvv)
+    G = Fu - dP
+    if pairs:
+        # h = g + c(T) n with c = m_e c^2 wherever pairs can exist: the term linear in n is
+        # restored analytically at evaluation, so that F_uu - F_u = h_uu - h_u keeps its
+        # digits when n << n_pairs (there h_u = n k T zeta, with zeta from the series above)
+        c0, c1, c2 = _rest_shift(V.ravel())
+        Hu = np.where(zeta < 1e-3, n * kT * zeta, Fu + c0 * n)
+        G, Fuu, Gv, Gvv = Hu - dP, Hu + n * n * kT * s.deta_dn, Gv + c1 * n, Gvv + c2 * n
+        Fuv, Fuuv, Fuvv, Fuuvv = Fuv + c1 * n, Fuuv + c1 * n, Fuvv + c2 * n, Fuuvv + c2 * n
+        Fu = Hu
+    shape = (u.size, v.size)
+    Gall = np.stack([G, Fu, Gv, Fuu, Gvv, Fuv, Fuuv, Fuvv, Fuuvv]).reshape((9,) + shape)
+    # the zero-charge gas varies like exp(-m_e c^2/kT) at the pair onset: a fine 1-D grid is cheap
+    v0 = np.linspace(v[0], v[-1], (v.size - 1) * _F0_REFINE + 1)
+    Tv = np.exp(v0)
+    P0v, S0v, C0v = _zero_charge(Tv, pairs)
+    F0 = np.stack([-P0v, -Tv * S0v, -Tv * S0v - Tv * C0v])
+    lnp = np.log(np.maximum(s.gas.n_plus, 1e-300)).reshape(shape).astype(np.float32)
+    return {"u": u, "v": v, "G": Gall, "F0": F0, "ln_n_plus": lnp, "pairs": np.array(pairs)}
+
+
+# ----------------------------------------------------------------------------- loading
+
+class _Table:
+    """Per-cell monomial coefficients of the free energy (and of ln n_plus)."""
+
+    def __init__(self, data):
+        u, v = data["u"], data["v"]
+        self.pairs = bool(data["pairs"])
+        self.u0, self.v0 = float(u[0]), float(v[0])
+        self.hu, self.hv = float(u[1] - u[0]), float(v[1] - v[0])
+        self.nu, self.nv = u.size, v.size
+        G = data["G"]
+        hu, hv = self.hu, self.hv
+        # data per (u-order p, v-order q), scaled to the unit cell
+        order = {(0, 0): 0, (1, 0): 1, (0, 1): 2, (2, 0): 3, (0, 2): 4, (1, 1): 5,
+                 (2, 1): 6, (1, 2): 7, (2, 2): 8}
+        D = np.empty((self.nu - 1, self.nv - 1, 6, 6))
+        for (p, q), idx in order.items():
+            a = G[idx] * (hu ** p * hv ** q)
+            for ci in (0, 1):
+                for cj in (0, 1):
+                    D[:, :, 3 * ci + p, 3 * cj + q] = a[ci:ci + self.nu - 1, cj:cj + self.nv - 1]
+        # C[k, l] = sum_ab M[k, a] D[a, b] M[l, b]; stored as (cell, l, k) so that the
+        # v-contraction reads contiguous rows
+        C = np.einsum("ka,xyab,lb->xylk", _M5, D, _M5, optimize=True)
+        self.C = np.ascontiguousarray(C.reshape(-1, 6, 6))
+        F0 = data["F0"]
+        self.m0 = (F0.shape[1] - 1) // (self.nv - 1)
+        h0 = hv / self.m0
+        self.h0 = h0
+        d0 = np.stack([F0[0][:-1], h0 * F0[1][:-1], h0 * h0 * F0[2][:-1],
+                       F0[0][1:], h0 * F0[1][1:], h0 * h0 * F0[2][1:]], axis=1)
+        self.C0 = d0 @ _M5.T                                       # (cells of the 1-D grid, 6)
+        if self.pairs:
+            L = data["ln_n_plus"].astype(float)
+            # bicubic Hermite with centred-difference slopes (display quantity only)
+            Lu = np.gradient(L, axis=0)
+            Lv = np.gradient(L, axis=1)
+            Luv = np.gradient(Lu, axis=1)
+            D3 = np.empty((self.nu - 1, self.nv - 1, 4, 4))
+            for (p, q), a in {(0, 0): L, (1, 0): Lu, (0, 1): Lv, (1, 1): Luv}.items():
+                for ci in (0, 1):
+                    for cj in (0, 1):
+                        D3[:, :, 2 * ci + p, 2 * cj + q] = a[ci:ci + self.nu - 1, cj:cj + self.nv - 1]
+            C3 = np.einsum("ka,xyab,lb->xylk", _M3, D3, _M3, optimize=True)
+            # float32: n_plus is a display quantity, and half the bytes halve the gather
+            self.C3 = np.ascontiguousarray(C3.reshape(-1, 4, 4), dtype=np.float32)
+
+    def locate(self, u, v):
+        x = (u - self.u0) / self.hu
+        y = (v - self.v0) / self.hv
+        i = np.clip(np.floor(x).astype(np.intp), 0, self.nu - 2)
+        j = np.clip(np.floor(y).astype(np.intp), 0, self.nv - 2)
+        return i * (self.nv - 1) + j, j, x - i, y - j
+
+
+@functools.lru_cache(maxsize=2)
+def _table(pairs):
+    path = _DATA / _FILES[pairs]
+    if not path.exists():
+        raise FileNotFoundError(f"{path} is missing; create it with `python -m physics.electron_table --build`")
+    with np.load(path) as data:
+        return _Table({k: data[k] for k in data.files})
+
+
+# ----------------------------------------------------------------------------- evaluation
+
+def _powers(z, deg):
+    """(N, 3, deg+1): rows z^k, d/dz z^k, d2/dz2 z^k."""
+    N = z.size
+    out = np.zeros((N, 3, deg + 1))
+    p = np.ones(N)
+    pw = [p]
+    for _ in range(deg):
+        p = p * z
+        pw.append(p)
+    for k in range(deg + 1):
+        out[:, 0, k] = pw[k]
+        if k >= 1:
+            out[:, 1, k] = k * pw[k - 1]
+        if k >= 2:
+            out[:, 2, k] = k * (k - 1) * pw[k - 2]
+    return out
+
+
+def _evaluate(tab, n, T):
+    """ElectronState fields (flat) from the interpolant, all points inside the table."""
+    u, v = np.log(n), np.log(T)
+    cell, j, zu, zv = tab.locate(u, v)
+    PU = _powers(zu, 5)                      # (N, 3, 6)
+    PV = _powers(zv, 5)
+    A = np.matmul(PV, tab.C[cell])           # (N, 3[q], 6[k]): v-contracted
+    R = np.matmul(A, np.ascontiguousarray(PU.transpose(0, 2, 1)))  # (N, 3[q], 3[p]) = d^p_u d^q_v G
+    hu, hv = tab.hu, tab.hv
+    G, Gu, Guu = R[:, 0, 0], R[:, 0, 1] / hu, R[:, 0, 2] / (hu * hu)
+    Gv, Gvv, Guv = R[:, 1, 0] / hv, R[:, 2, 0] / (hv * hv), R[:, 1, 1] / (hu * hv)
+    # 1-D zero-charge part, depends on v only, on its finer grid
+    y0 = (v - tab.v0) / tab.h0
+    j0 = np.clip(np.floor(y0).astype(np.intp), 0, tab.C0.shape[0] - 1)
+    P0 = _powers(y0 - j0, 5)
+    c0 = tab.C0[j0]
+    h0 = tab.h0
+    F0 = np.einsum("nk,nk->n", c0, P0[:, 0])
+    F0v = np.einsum("nk,nk->n", c0, P0[:, 1]) / h0
+    F0vv = np.einsum("nk,nk->n", c0, P0[:, 2]) / (h0 * h0)
+    kT = _K * T
+    # with pairs the table holds h = g + c(T) n; the c terms restore g analytically, and
+    # the differences below are arranged so that they cancel exactly where they should
+    if tab.pairs:
+        c0, c1, c2 = _rest_shift(v)
+    else:
+        c0 = c1 = c2 = 0.0
+    eta = (Gu / n - c0) / kT
+    P = (Gu - G) - F0
+    Fv = Gv - c1 * n + F0v
+    S = -Fv / T
+    E = (G - Gv) - (c0 - c1) * n + (F0 - F0v)
+    dP_dn = (Guu - Gu) / n
+    dP_dT_n = (Guv - Gv - F0v) / T
+    dE_dn = (Gu - Guv) / n - (c0 - c1)
+    dE_dT_n = -((Gvv - Gv) - (c2 - c1) * n + (F0vv - F0v)) / T
+    deta_dn = (Guu - Gu) / (n * n * kT)
+    deta_dT = (Guv - Gu - (c1 - c0) * n) / (n * kT * T)
+    if tab.pairs:
+        PL = _powers(zu, 3)[:, 0]
+        QL = _powers(zv, 3)[:, 0]
+        L = np.einsum("nl,nlk,nk->n", QL, tab.C3[cell].astype(float), PL)
+        n_plus = np.exp(L)
+        n_plus[L < -690.0] = 0.0             # the floor of the stored table
+    else:
+        n_plus = np.zeros_like(n)
+    dn_deta = 1.0 / deta_dn
+    dP_deta = dP_dn * dn_deta
+    dE_deta = dE_dn * dn_deta
+    gas = ElectronGas(
+        n_minus=n + n_plus, n_plus=n_plus, n_net=n.copy(), P=P, E=E, S=S,
+        dn_deta=dn_deta, dn_dT=-deta_dT * dn_deta,
+        dP_deta=dP_deta, dP_dT=dP_dT_n - dP_deta * deta_dT,
+        dE_deta=dE_deta, dE_dT=dE_dT_n - dE_deta * deta_dT,
+    )
+    return ElectronState(gas=gas, eta=eta, dP_dn=dP_dn, dP_dT_n=dP_dT_n, dE_dn=dE_dn,
+                         dE_dT_n=dE_dT_n, deta_dn=deta_dn, deta_dT=deta_dT)
+
+
+def _inside(n, T):
+    ln0, ln1, lt0, lt1 = TABLE_RANGE
+    return (n >= 10.0 ** ln0) & (n <= 10.0 ** ln1) & (T >= 10.0 ** lt0) & (T <= 10.0 ** lt1)
+
+
+def in_table(n_net, T):
+    """Mask of the points that :func:`table_state` interpolates (the rest go to the exact solver).
+
+    Parameters
+    ----------
+    n_net : array_like
+        Net electron density, cm^-3.
+    T : array_like
+        Temperature, K.  Broadcasts against ``n_net``.
+
+    Returns
+    -------
+    ndarray of bool
+        True where 1e4 <= n_net <= 1e37 cm^-3 and 1e3 <= T <= 10^11.5 K (:data:`TABLE_RANGE`).
+
+    Notes
+    -----
+    Non-finite or non-positive values give False (table_state rejects them).
+    """
+    n, T = np.broadcast_arrays(np.asarray(n_net, dtype=float), np.asarray(T, dtype=float))
+    with np.errstate(invalid="ignore"):
+        return _inside(n, T)
+
+
+def table_state(n_net, T, pairs=True):
+    """Electron–positron gas at given net electron density and temperature, from the table.
+
+    Parameters
+    ----------
+    n_net : array_like
+        Net electron density, cm^-3 (> 0), e.g. rho ye / m_u.
+    T : array_like
+        Temperature, K (> 0).  Broadcasts against ``n_net``.
+    pairs : bool, optional
+        Include thermally created positrons.
+
+    Returns
+    -------
+    ElectronState
+        Same fields and meaning as :func:`physics.electrons.electron_state`.
+        Inside :data:`TABLE_RANGE` every thermodynamic field is a derivative of
+        one interpolated free energy; n_plus and n_minus come from a separate
+        bicubic table of ln n_plus (for display).  Outside, the exact solver.
+
+    Raises
+    ------
+    ValueError
+        If n_net or T is not finite and positive, or pairs is not a bool.
+    FileNotFoundError
+        If the table file is missing (build it with ``python -m physics.electron_table --build``).
+
+    Notes
+    -----
+    With F(u, v) = f the interpolated free energy, u = ln n, v = ln T:
+    eta = F_u/(n k T), P = F_u - F, S = -F_v/T, E = F - F_v,
+    (dP/dn)_T = (F_uu - F_u)/n, (dP/dT)_n = (F_uv - F_v)/T,
+    (dE/dn)_T = (F_u - F_uv)/n, (dE/dT)_n = -(F_vv - F_v)/T,
+    (deta/dn)_T = (F_uu - F_u)/(n^2 k T), (deta/dT)_n = (F_uv - F_u)/(n k T^2);
+    (eta, T)-partials by dn/deta = 1/(deta/dn), (dX/dT)_eta = (dX/dT)_n - (dX/deta) (deta/dT)_n.
+    Hence (dE/dn)_T = (E + P - T (dP/dT)_n)/n and (dS/dT)_n = (dE/dT)_n / T
+    hold to rounding.
+
+    References
+    ----------
+    Timmes, F. X. & Swesty, F. D. 2000, ApJS 126, 501.
+    """
+    if not isinstance(pairs, (bool, np.bool_)):
+        raise ValueError(f"pairs must be True or False, got {pairs!r}")
+    pairs = bool(pairs)
+    shape, n, T = _prepare(n_net, T)
+    inside = _inside(n, T)
+    if inside.all():
+        st = _evaluate(_table(pairs), n, T)
+    else:
+        parts = []
+        for mask, fun in ((inside, lambda a, b: _evaluate(_table(pairs), a, b)),
+                          (~inside, lambda a, b: electron_state(a, b, pairs))):
+            if mask.any():
+                parts.append((mask, fun(n[mask], T[mask])))
+        fields = {}
+        for name in ElectronGas._fields:
+            out = np.empty(n.size)
+            for mask, st_ in parts:
+                out[mask] = getattr(st_.gas, name)
+            fields[name] = out
+        rest = {}
+        for name in ElectronState._fields[1:]:
+            out = np.empty(n.size)
+            for mask, st_ in parts:
+                out[mask] = getattr(st_, name)
+            rest[name] = out
+        st = ElectronState(gas=ElectronGas(**fields), **rest)
+    rs = lambda a: a.reshape(shape)  # noqa: E731
+    return ElectronState(gas=ElectronGas(*[rs(a) for a in st.gas]),
+                         **{k: rs(getattr(st, k)) for k in ElectronState._fields[1:]})
+
+
+def main(argv=None):
+    """``python -m physics.electron_table --build``: write both table files."""
+    ap = argparse.ArgumentParser(prog="python -m physics.electron_table", description=main.__doc__)
+    ap.add_argument("--build", action="store_true", help="compute and write the .npz tables")
+    ap.add_argument("--dlogn", type=float, default=0.05)
+    ap.add_argument("--dlogT", type=float, default=0.05)
+    ap.add_argument("--out", default=str(_DATA))
+    args = ap.parse_args(argv)
+    if not args.build:
+        ap.print_help()
+        return 0
+    out = Path(args.out)
+    out.mkdir(parents=True, exist_ok=True)
+    for pairs in (True, False):
+        data = build_table(pairs, args.dlogn, args.dlogT)
+        np.savez_compressed(out / _FILES[pairs], **data)
+        print(f"wrote {out / _FILES[pairs]} ({(out / _FILES[pairs]).stat().st_size / 1e6:.1f} MB)")
+    _table.cache_clear()
+    return 0
+
+
+if __name__ == "__main__":
+    sys.exit(main())

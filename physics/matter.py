@@ -1,0 +1,300 @@
+"""Electrons, ions and the ionization equilibrium between them.
+
+The question this module answers: for matter of a given composition at
+(rho, T), how many electrons are free, what is their degeneracy eta, and what
+are the pressure, energy and entropy of electrons plus ions, with exact
+derivatives?
+
+Charge neutrality closes the system: the net electron density of the
+electron gas at eta equals the free electrons the ions give up,
+
+    G(eta; rho, T) = n_gas(eta, T) - rho [N_fixed + sum_s N_s zbar_s(eta, T, rho)] = 0,
+
+with N_fixed the electrons per gram of nuclei taken as fully ionized (all
+metals; every nuclide when ionization="full") and zbar_s the Saha mean charge
+of H and He (:mod:`physics.ionization`). G increases with eta, so the root is
+unique; it is found by safeguarded Newton iterations on
+ln n_gas - ln n_free. Derivatives follow by implicit differentiation:
+d eta / dx = -G_x / G_eta.
+
+Free energy per gram (ions of kind s in stage j, fraction f_j, with
+Lambda_s = h / sqrt(2 pi m_s k T)):
+
+    F = F_e / rho + sum_s N_s sum_j f_j [kT (ln(n_s f_j Lambda_s^3 / g_j) - 1) - kT ln w_j + C_j]
+
+whose minimum over the f_j is the Saha equilibrium; P, E, S and all their
+derivatives below are derived from it, so (dE/drho)_T = (P - T (dP/dT)) / rho^2
+holds to rounding. The ionization energy C_j of H and He (from the neutral
+atom) is part of E; the metals, always fully ionized, carry no ionization
+energy (a constant left out).
+"""
+
+from __future__ import annotations
+
+from typing import NamedTuple
+
+import numpy as np
+
+from . import constants as const
+from .composition import Composition
+from .electron_table import table_state
+from .electrons import _CN, ElectronGas, ElectronState, electron_state
+from .ionization import ELEMENTS, ionization_stages
+from .thermo import Part
+
+__all__ = ["MatterResult", "matter"]
+
+_NEWTON_TOL = 1e-13
+_MAX_ITER = 80
+
+
+def _quantum_concentration_e(T):
+    """2 / lambda_e^3 = 2 (2 pi m_e k T / h^2)^(3/2), cm^-3."""
+    return 2.0 * (2.0 * np.pi * const.m_e * const.k_B * T / const.h**2) ** 1.5
+
+
+def classical_state(n, T) -> ElectronState:
+    """Non-degenerate, non-relativistic electrons (Maxwell–Boltzmann, spin weight 2) at density n.
+
+    eta = ln(n lambda^3 / 2), P = n k T, E = (3/2) n k T; no positrons.
+    """
+    k = const.k_B
+    eta = np.log(n / _quantum_concentration_e(T))
+    zero = np.zeros_like(n)
+    gas = ElectronGas(n_minus=n, n_plus=zero, n_net=n, P=n * k * T, E=1.5 * n * k * T,
+                      S=n * k * (2.5 - eta), dn_deta=n, dn_dT=1.5 * n / T, dP_deta=n * k * T,
+                      dP_dT=2.5 * n * k, dE_deta=1.5 * n * k * T, dE_dT=3.75 * n * k)
+    return ElectronState(gas=gas, eta=eta, dP_dn=k * T + zero, dP_dT_n=n * k, dE_dn=1.5 * k * T + zero,
+                         dE_dT_n=1.5 * n * k, deta_dn=1.0 / n, deta_dT=-1.5 / T + zero)
+
+
+#: log10 T above which the pair table is used where positrons matter (it is accurate there:
+#: tests/physics/test_electron_table.py); below it, points with positrons go to the exact quadrature.
+PAIR_TABLE_LOG_T = 9.4
+#: Positrons below this fraction of the net electrons are left out (their effect on P is smaller).
+NEGLIGIBLE_POSITRONS = 1e-10
+
+
+def _positron_bound(eta, T):
+    """An upper bound on n_+ / n_- scale: non-degenerate positrons at eta_+ = -eta - 2/theta, cm^-3.
+
+    n_+ <= C theta^(3/2) e^(eta_+) [G_1/2 + theta G_3/2], G_k <= Gamma(k+1) (1 + theta (k+1)/4).
+    """
+    theta = const.k_B * T / const.m_e_c2
+    eta_plus = np.minimum(-eta - 2.0 / theta, 0.0)
+    G = 0.8862269 * (1.0 + 0.375 * theta) + theta * 1.3293404 * (1.0 + 0.625 * theta)
+    return _CN * theta**1.5 * np.exp(eta_plus) * G
+
+
+def fermi_state(n, T, pairs: bool) -> ElectronState:
+    """The Fermi–Dirac electron(–positron) gas at net density n and T, fast where it can be.
+
+    Without pairs: the pair-free table (physics.electron_table). With pairs: the same table where
+    positrons are negligible (bound above), the pair table in the hot pair plasma, and the exact
+    quadrature (physics.electrons) in between, where the tabulated pair onset is not accurate enough.
+    Each point's values come from one consistent source.
+    """
+    state = table_state(n, T, pairs=False)
+    if not pairs:
+        return state
+    need = _positron_bound(state.eta, T) > NEGLIGIBLE_POSITRONS * n
+    if not np.any(need):
+        return state
+    hot = need & (T >= 10.0**PAIR_TABLE_LOG_T)
+    onset = need & ~hot
+    parts = [(hot, lambda nn, tt: table_state(nn, tt, pairs=True)),
+             (onset, lambda nn, tt: electron_state(nn, tt, pairs=True))]
+    fields = [np.array(a, copy=True) for a in state.gas] + [np.array(a, copy=True) for a in state[1:]]
+    for mask, fn in parts:
+        if np.any(mask):
+            sub = fn(n[mask], T[mask])
+            for dst, src in zip(fields, list(sub.gas) + list(sub[1:])):
+                dst[mask] = src
+    k = len(state.gas)
+    return ElectronState(ElectronGas(*fields[:k]), *fields[k:])
+
+
+def electrons_at(n, T, electrons: str, pairs: bool) -> ElectronState:
+    """The electron gas at net density n (cm^-3) and T: table, exact quadrature, or classical."""
+    if electrons == "classical":
+        return classical_state(n, T)
+    return fermi_state(n, T, pairs=pairs)
+
+
+class MatterResult(NamedTuple):
+    part: Part                  # electrons + ions (+ bound-state pressure), per gram
+    P_e: np.ndarray
+    P_ion: np.ndarray
+    eta: np.ndarray
+    n_net: np.ndarray
+    n_minus: np.ndarray
+    n_plus: np.ndarray
+    n_full: np.ndarray          # electron density if fully ionized
+    ion_H: np.ndarray
+    ion_He1: np.ndarray
+    ion_He2: np.ndarray
+    mean_Z: np.ndarray
+
+
+def _saha_elements(comp: Composition, ionization: str):
+    """Which elements get Saha stages: {Z: N_per_gram}, and electrons per gram of the rest."""
+    per_mass = comp.X / (comp.A * const.m_u)
+    saha = {}
+    fixed = 0.0
+    for N, Z in zip(per_mass, comp.Z):
+        if ionization == "saha" and int(Z) in ELEMENTS and Z == int(Z):
+            saha[int(Z)] = saha.get(int(Z), 0.0) + float(N)
+        else:
+            fixed += float(N * Z)
+    return saha, fixed
+
+
+def _free_electrons(stages, saha, fixed, rho):
+    """n_free and its partials (eta, T, ln rho at fixed other two) from the stage fractions."""
+    zsum = fixed + sum(saha[z] * stages[z].mean_charge for z in saha)
+    partials = [sum(saha[z] * stages[z].mean_charge_partials()[i] for z in saha) for i in range(3)]
+    return (rho * zsum, *(rho * d for d in partials))
+
+
+def _stages(saha, eta, T, n_full):
+    return {z: ionization_stages(ELEMENTS[z], eta, T, n_full) for z in saha}
+
+
+def _solve_saha(n_full, rho, T, saha, fixed, electrons, pairs):
+    """ln n_e from ln n_e = ln n_free(eta(n_e, T)) where ionization is incomplete (1-D arrays).
+
+    Phi(y) = y - ln n_free(eta(e^y, T)) increases with y (slope >= 1), so Newton
+    steps safeguarded by a bracket [lo, hi] converge; hi starts at ln n_full.
+    """
+    y = np.log(n_full)
+    hi = y.copy()
+    lo = np.log(rho * fixed) if fixed > 0 else np.full_like(y, -np.inf)
+    active = np.arange(y.size)
+    for _ in range(_MAX_ITER):
+        if active.size == 0:
+            break
+        ya = y[active]
+        st_e = electrons_at(np.exp(ya), T[active], electrons, pairs)
+        st = _stages(saha, st_e.eta, T[active], n_full[active])
+        n_free, nf_eta, _, _ = _free_electrons(st, saha, fixed, rho[active])
+        phi = ya - np.log(n_free)
+        slope = 1.0 - nf_eta / n_free * st_e.deta_dn * np.exp(ya)
+        done = np.abs(phi) < _NEWTON_TOL
+        pos = phi > 0
+        hi[active] = np.where(pos, ya, hi[active])
+        lo[active] = np.where(pos, lo[active], ya)
+        new = ya - np.clip(phi / slope, -40.0, 40.0)
+        la, ha = lo[active], hi[active]
+        outside = (new <= la) | (new >= ha)
+        new = np.where(outside & np.isfinite(la), 0.5 * (la + ha), np.where(outside, ha - 40.0, new))
+        small = np.abs(new - ya) < 1e-14 * np.maximum(1.0, np.abs(ya))
+        y[active] = np.where(done, ya, new)
+        active = active[~(done | small)]
+    return np.exp(y)
+
+
+def matter(rho, T, comp: Composition, electrons: str, ionization: str, pairs: bool) -> MatterResult:
+    """Electrons + ions in ionization equilibrium at (rho, T), with exact derivatives.
+
+    Parameters
+    ----------
+    rho, T : ndarray
+        Density (g cm^-3) and temperature (K), same shape.
+    comp : Composition
+    electrons : {"fermi", "classical"}
+        Fermi–Dirac electron–positron gas, or Maxwell–Boltzmann electrons
+        (no positrons).
+    ionization : {"saha", "full"}
+        Saha H and He with pressure ionization, or everything fully ionized.
+    pairs : bool
+        Thermal electron–positron pairs (Fermi electrons only).
+    """
+    shape = rho.shape
+    r, t = rho.ravel(), T.ravel()
+    k = const.k_B
+    pairs = bool(pairs) and electrons == "fermi"
+    saha, fixed = _saha_elements(comp, ionization)
+    N_full = float(np.sum(comp.X * comp.Z / (comp.A * const.m_u)))
+    n_full = r * N_full
+
+    # 1. the free-electron density: n_full where ionization is complete, Saha elsewhere
+    n_e = n_full.copy()
+    if saha:
+        st_full = electrons_at(n_full, t, electrons, pairs)
+        n_free0 = _free_electrons(_stages(saha, st_full.eta, t, n_full), saha, fixed, r)[0]
+        incomplete = np.flatnonzero(np.log(n_full) - np.log(n_free0) > _NEWTON_TOL)
+        if incomplete.size:
+            n_e[incomplete] = _solve_saha(n_full[incomplete], r[incomplete], t[incomplete],
+                                          saha, fixed, electrons, pairs)
+    # 2. everything at the solved density, with partials (implicit differentiation of
+    #    G(n; rho, T) = n - n_free(eta(n, T), T, rho) = 0)
+    es = electrons_at(n_e, t, electrons, pairs)
+    eta = es.eta
+    stages = _stages(saha, eta, t, n_full)
+    n_free, nf_eta, nf_T, nf_ln = _free_electrons(stages, saha, fixed, r)
+    G_n = 1.0 - nf_eta * es.deta_dn
+    dn_drho = (n_free + nf_ln) / r / G_n
+    dn_dT = (nf_eta * es.deta_dT + nf_T) / G_n
+    deta_drho = es.deta_dn * dn_drho
+    deta_dT = es.deta_dT + es.deta_dn * dn_dT
+
+    # electrons, per gram; S = (E + P - eta k T n) / T per volume, differentiated term by term
+    gas = es.gas
+    n = n_e
+    P_e = gas.P
+    Pe_rho = es.dP_dn * dn_drho
+    Pe_T = es.dP_dT_n + es.dP_dn * dn_dT
+    Ee = gas.E / r
+    Ee_rho = es.dE_dn * dn_drho / r - gas.E / r**2
+    Ee_T = (es.dE_dT_n + es.dE_dn * dn_dT) / r
+    S_vol = (gas.E + P_e - eta * k * t * n) / t
+    S_n = (es.dE_dn + es.dP_dn - eta * k * t - k * t * n * es.deta_dn) / t
+    S_Tn = (es.dE_dT_n + es.dP_dT_n - eta * k * n - k * t * n * es.deta_dT) / t - S_vol / t
+    Se = S_vol / r
+    Se_rho = S_n * dn_drho / r - S_vol / r**2
+    Se_T = (S_Tn + S_n * dn_dT) / r
+
+    # ions (kinetic), bound-state pressure, ionization energy, per gram
+    per_mass = comp.X / (comp.A * const.m_u)
+    N_nuc = float(np.sum(per_mass))
+    P_ion = r * N_nuc * k * t
+    Pi_rho = N_nuc * k * t
+    Pi_T = r * N_nuc * k
+    Ei = 1.5 * N_nuc * k * t
+    Ei_T = 1.5 * N_nuc * k + 0.0 * t
+    Ei_rho = np.zeros_like(t)
+    lam3_T = (const.h**2 / (2.0 * np.pi * const.m_u * k * t)) ** 1.5       # per u of mass, times A^-3/2
+    Si = np.zeros_like(t)
+    Si_rho = -k * N_nuc / r
+    Si_T = 1.5 * k * N_nuc / t
+    for N_i, A_i, Z_i in zip(per_mass, comp.A, comp.Z):   # loop over nuclides
+        ln_nL3 = np.log(r) + np.log(N_i) + np.log(lam3_T) - 1.5 * np.log(A_i)   # separate logs: N_i may be tiny
+        st = stages.get(int(Z_i)) if (int(Z_i) == Z_i and int(Z_i) in saha) else None
+        if st is None:
+            Si += N_i * k * (2.5 - ln_nL3)
+            continue
+        for j, f in enumerate(st.f):
+            df_rho = st.f_lnrho[j] / r + st.f_eta[j] * deta_drho
+            df_T = st.f_T[j] + st.f_eta[j] * deta_dT
+            inner = ln_nL3 + st.ln_f_gw[j]                 # ln(n_j Lambda^3 / (g_j w_j))
+            Si += N_i * k * f * (2.5 - inner)
+            dlnw_rho = st.ln_w_lnrho[j] / r + st.ln_w_eta[j] * deta_drho
+            dlnw_T = st.ln_w_T[j] + st.ln_w_eta[j] * deta_dT
+            Si_rho += N_i * k * (df_rho * (1.5 - inner) + f * dlnw_rho)
+            Si_T += N_i * k * (df_T * (1.5 - inner) + f * dlnw_T)
+            C = st.cumulative[j]
+            Ei += N_i * f * C
+            Ei_rho += N_i * C * df_rho
+            Ei_T += N_i * C * df_T
+
+    part = Part(P=P_e + P_ion, E=Ee + Ei, S=Se + Si, P_rho=Pe_rho + Pi_rho, P_T=Pe_T + Pi_T,
+                E_rho=Ee_rho + Ei_rho, E_T=Ee_T + Ei_T, S_rho=Se_rho + Si_rho, S_T=Se_T + Si_T)
+    one = np.ones_like(t)
+    ion_H = stages[1].f[1] if 1 in stages else one
+    ion_He1 = (stages[2].f[1] + stages[2].f[2]) if 2 in stages else one
+    ion_He2 = stages[2].f[2] if 2 in stages else one
+    rs = lambda a: np.reshape(a, shape)  # noqa: E731
+    return MatterResult(part=Part(*(rs(getattr(part, f)) for f in Part.__dataclass_fields__)),
+                        P_e=rs(P_e), P_ion=rs(P_ion), eta=rs(eta), n_net=rs(n), n_minus=rs(gas.n_minus),
+                        n_plus=rs(gas.n_plus), n_full=rs(n_full), ion_H=rs(ion_H), ion_He1=rs(ion_He1),
+                        ion_He2=rs(ion_He2), mean_Z=rs(n_free / (r * N_nuc)))

@@ -1,0 +1,114 @@
+"""Tests of physics.electron_table: accuracy against the exact gas, consistency, limits, fallback."""
+
+import mpmath as mp
+import numpy as np
+import pytest
+
+from physics import constants as const
+from physics.electron_table import in_table, table_state
+from physics.electrons import electron_state
+
+NX = 8 * np.pi / 3 * (const.m_e * const.c / const.h) ** 3   # n at x_F = 1
+
+
+def _random(N, lo_n, hi_n, lo_T, hi_T, seed):
+    rng = np.random.default_rng(seed)
+    return 10 ** rng.uniform(lo_n, hi_n, N), 10 ** rng.uniform(lo_T, hi_T, N)
+
+
+def _rel(a, b, scale=None):
+    return np.max(np.abs(a - b) / (np.abs(b) if scale is None else scale))
+
+
+@pytest.mark.parametrize("pairs,lo_T,hi_T,tol", [
+    (False, 3.0, 11.5, dict(P=3e-7, E=3e-7, eta=1e-7, dP_dn=2e-5, dE_dT=2e-6)),
+    # pairs on, below the rest-mass shift band (10^7.3..10^7.9 K) and the pair onset
+    (True, 3.0, 7.2, dict(P=3e-7, E=3e-7, eta=1e-7, dP_dn=2e-5, dE_dT=2e-6)),
+])
+def test_against_exact_state(pairs, lo_T, hi_T, tol):
+    n, T = _random(4000, 4.0, 37.0, lo_T, hi_T, 1)
+    a, b = table_state(n, T, pairs), electron_state(n, T, pairs)   # reference: exact quadrature
+    kT = const.k_B * T
+    # S and (dE/dT)_n of the exact gas are formed as (E + P - mu n)/T, so their precision
+    # is relative to that scale, not to S itself (strong degeneracy)
+    sc = (np.abs(b.gas.E) + b.gas.P + np.abs(b.eta * kT * n)) / T
+    assert _rel(a.gas.P, b.gas.P) < tol["P"]
+    assert _rel(a.gas.E, b.gas.E) < tol["E"]
+    assert _rel(a.eta, b.eta, np.maximum(np.abs(b.eta), 1.0)) < tol["eta"]
+    assert _rel(a.gas.S, b.gas.S, sc) < 1e-7
+    assert _rel(a.dP_dn, b.dP_dn, b.gas.P / n) < tol["dP_dn"]
+    assert _rel(a.dP_dT_n, b.dP_dT_n, b.gas.P / T) < tol["P"]
+    assert _rel(a.dE_dT_n, b.dE_dT_n, sc) < tol["dE_dT"]
+    assert _rel(a.deta_dT, b.deta_dT, np.abs(b.deta_dT) + np.maximum(np.abs(b.eta), 1) / T) < tol["eta"] * 10
+
+
+def test_pair_dominated_hot_gas():
+    n, T = _random(3000, 12.0, 37.0, 9.5, 11.5, 2)
+    a, b = table_state(n, T), electron_state(n, T)      # reference: exact quadrature
+    assert _rel(a.gas.P, b.gas.P) < 1e-6
+    assert _rel(a.gas.E, b.gas.E) < 1e-6
+    assert _rel(a.eta, b.eta, np.maximum(np.abs(b.eta), 1.0)) < 1e-6
+
+
+@pytest.mark.parametrize("pairs", [True, False])
+def test_consistency_identities(pairs):
+    # f = E - T S with df = mu dn - S dT gives, per unit volume:
+    # (dE/dn)_T = (E + P - T (dP/dT)_n)/n  and  (dS/dT)_n = (dE/dT)_n / T
+    n, T = _random(4000, 4.0, 37.0, 3.0, 11.5, 3)
+    s = table_state(n, T, pairs)
+    g = s.gas
+    lhs = n * s.dE_dn
+    rhs = g.E + g.P - T * s.dP_dT_n
+    scale = np.abs(g.E) + np.abs(g.P) + np.abs(T * s.dP_dT_n) + np.abs(lhs)
+    assert np.max(np.abs(lhs - rhs) / scale) < 1e-10
+    # S from the same interpolant: S = (E + P - eta k T n)/T
+    S2 = (g.E + g.P - s.eta * const.k_B * T * n) / T
+    sc = (np.abs(g.E) + g.P + np.abs(s.eta * const.k_B * T * n)) / T
+    assert np.max(np.abs(g.S - S2) / sc) < 1e-10
+    # (eta, T) partials of the gas are the implicit-function transforms of the (n, T) ones
+    assert np.allclose(g.dn_deta * s.deta_dn, 1.0, rtol=1e-12)
+
+
+def chandrasekhar_P(x):
+    """T = 0 pressure (source: Chandrasekhar 1939), in mpmath to avoid cancellation."""
+    x = mp.mpf(x)
+    pre = mp.pi * const.m_e ** 4 * const.c ** 5 / (3 * const.h ** 3)
+    return float(pre * (x * (2 * x * x - 3) * mp.sqrt(1 + x * x) + 3 * mp.asinh(x)))
+
+
+@pytest.mark.parametrize("x", [0.1, 0.5, 1.0, 3.0, 10.0, 100.0])
+def test_zero_temperature_pressure_chandrasekhar(x):
+    n = NX * x ** 3
+    s = table_state(n, 1e3)      # kT / E_F < 4e-5 at x >= 0.1: thermal part < 1e-8
+    assert abs(float(s.gas.P) / chandrasekhar_P(x) - 1) < 1e-5
+
+
+def test_non_degenerate_ideal_gas():
+    # P = n k T for a classical gas (common practice, no source); eta < -20 here
+    n = np.array([1e5, 1e8, 1e10])
+    T = np.array([1e5, 1e6, 1e7])
+    s = table_state(n, T, pairs=False)
+    assert np.all(np.abs(s.gas.P / (n * const.k_B * T) - 1) < 1e-6)
+
+
+def test_fallback_outside_table_is_exact():
+    n = np.array([1e2, 1e20, 1e38, 1e20])
+    T = np.array([1e6, 1e2, 1e8, 1e7])
+    mask = in_table(n, T)
+    assert mask.tolist() == [False, False, False, True]
+    a, b = table_state(n, T), electron_state(n, T)
+    for name in ("P", "E", "S", "n_plus"):
+        assert np.array_equal(getattr(a.gas, name)[~mask], getattr(b.gas, name)[~mask])
+    assert np.array_equal(a.eta[~mask], b.eta[~mask])
+    assert abs(a.gas.P[3] / b.gas.P[3] - 1) < 1e-6
+
+
+def test_shape_and_broadcast():
+    s = table_state(np.full((3, 4), 1e24), np.array([1e4, 1e6, 1e8, 1e10]))
+    assert s.gas.P.shape == (3, 4) and s.eta.shape == (3, 4)
+
+
+@pytest.mark.parametrize("n,T,pairs", [(-1.0, 1e6, True), (1e20, np.nan, True), (1e20, 1e6, "yes")])
+def test_bad_input(n, T, pairs):
+    with pytest.raises(ValueError):
+        table_state(n, T, pairs)
