@@ -7,7 +7,7 @@ from dataclasses import dataclass, field
 import numpy as np
 import plotly.graph_objects as go
 
-__all__ = ["Line", "plane_figure", "LINE_STYLES", "COLOR_SCALES"]
+__all__ = ["Line", "plane_figure", "place_labels", "graph_config", "LINE_STYLES", "COLOR_SCALES"]
 
 #: Colour scales offered for the shading: perceptually uniform sequential
 #: scales and colour-blind-safe diverging scales (plotly's built-in names).
@@ -51,15 +51,59 @@ class Line:
     extra: dict = field(default_factory=dict)
 
 
-def _label_position(x: np.ndarray, y: np.ndarray, x_range, y_range):
-    """A point on the line inside the view, away from the edges, for its label."""
-    ok = np.isfinite(x) & np.isfinite(y)
-    ok &= (x > x_range[0]) & (x < x_range[1]) & (y > y_range[0]) & (y < y_range[1])
-    idx = np.flatnonzero(ok)
-    if idx.size == 0:
-        return None
-    i = idx[int(0.72 * (idx.size - 1))]
-    return float(x[i]), float(y[i])
+# Label boxes are placed in axis fractions (0..1) with a size estimated from
+# the font, for a plot area of about this many pixels (the page's figure).
+_PLOT_PX = (900.0, 560.0)
+_CANDIDATES = (0.72, 0.5, 0.85, 0.3, 0.6, 0.15, 0.4, 0.92, 0.08)
+
+
+def _label_box(fx, fy, text, font):
+    w = (0.58 * font * len(text) + 6) / _PLOT_PX[0]
+    h = (font + 8) / _PLOT_PX[1]
+    return (fx - w / 2, fy - h / 2 + 12 / _PLOT_PX[1], fx + w / 2, fy + h / 2 + 12 / _PLOT_PX[1])
+
+
+def _overlap(a, b) -> float:
+    dx = min(a[2], b[2]) - max(a[0], b[0])
+    dy = min(a[3], b[3]) - max(a[1], b[1])
+    return max(dx, 0.0) * max(dy, 0.0)
+
+
+def place_labels(lines, x_range, y_range, font: float) -> list[tuple[float, float] | None]:
+    """A label point on each line, inside the view, avoiding earlier labels.
+
+    Greedy: for each line in turn, the first candidate position along its
+    visible part (72 %, 50 %, 85 %, ... of the way) whose estimated text box
+    neither leaves the plot nor overlaps a label already placed; if none is
+    free, the candidate with the least overlap. None for a line not in view.
+    """
+    placed, out = [], []
+    wx = x_range[1] - x_range[0]
+    wy = y_range[1] - y_range[0]
+    for line in lines:
+        x = np.asarray(line.log_rho, dtype=float)
+        y = np.asarray(line.log_T, dtype=float)
+        with np.errstate(invalid="ignore"):
+            ok = np.isfinite(x) & np.isfinite(y)
+            ok &= (x > x_range[0]) & (x < x_range[1]) & (y > y_range[0]) & (y < y_range[1])
+        idx = np.flatnonzero(ok)
+        if idx.size == 0:
+            out.append(None)
+            continue
+        best, best_cost = None, np.inf
+        for frac in _CANDIDATES:
+            i = idx[int(frac * (idx.size - 1))]
+            fx, fy = (x[i] - x_range[0]) / wx, (y[i] - y_range[0]) / wy
+            box = _label_box(fx, fy, line.label, font)
+            cost = sum(_overlap(box, b) for b in placed)
+            cost += 10 * (max(0.0, -box[0]) + max(0.0, box[2] - 1) + max(0.0, box[3] - 1) + max(0.0, -box[1]))
+            if cost < best_cost:
+                best, best_cost = (float(x[i]), float(y[i]), box), cost
+            if cost == 0:
+                break
+        placed.append(best[2])
+        out.append(best[:2])
+    return out
 
 
 def plane_figure(log_rho: np.ndarray, log_T: np.ndarray, z: np.ndarray, *, z_label: str,
@@ -67,7 +111,9 @@ def plane_figure(log_rho: np.ndarray, log_T: np.ndarray, z: np.ndarray, *, z_lab
                  z_range: tuple[float, float] | None = None,
                  lines: list[Line] = (), title: str = "", presentation: bool = False,
                  hover_text: np.ndarray | None = None,
-                 categorical: list[tuple[str, str]] | None = None) -> go.Figure:
+                 categorical: list[tuple[str, str]] | None = None,
+                 customdata: np.ndarray | None = None,
+                 extra_traces=()) -> go.Figure:
     """The density–temperature map: a shaded field with labelled lines over it.
 
     Parameters
@@ -76,21 +122,29 @@ def plane_figure(log_rho: np.ndarray, log_T: np.ndarray, z: np.ndarray, *, z_lab
         Axes (log10 g cm^-3, log10 K).
     z : 2-D array, shape (len(log_T), len(log_rho))
         The shaded quantity (or integer codes when ``categorical`` is given).
+        Sent as float32 (a typed array), the largest part of the payload.
     z_label : str
         Colour-bar title.
     colorscale, z_mid, z_range
         Plotly colour scale name; centre of a diverging scale (None for none);
         fixed colour limits (None for the data's range).
     lines : list of Line
-        Boundaries, ignition contours, mass lines; each labelled on the plot.
+        Boundaries, ignition contours, mass lines; each labelled on the plot,
+        the labels placed so that they do not overlap where it can be helped.
     categorical : list of (label, colour), optional
         Draw ``z`` as categories with a legend instead of a colour bar.
+    customdata : 2-D int array, optional
+        Small integer codes per pixel (the regime), sent as int8 for the hover readout.
+    extra_traces : sequence of plotly traces
+        Drawn over everything else (the hook for stellar tracks).
+    presentation : bool
+        Larger type and thicker lines, for a projector.
     """
     font = 20 if presentation else 13
     line_scale = 2.0 if presentation else 1.0
     fig = go.Figure()
     heat = dict(x=np.asarray(log_rho, dtype=np.float32), y=np.asarray(log_T, dtype=np.float32),
-                z=np.asarray(z, dtype=np.float32), zsmooth=False, name="map")
+                z=np.asarray(z, dtype=np.float32), zsmooth=False, name="map", meta="map")
     if categorical:
         n = len(categorical)
         scale = []
@@ -99,25 +153,30 @@ def plane_figure(log_rho: np.ndarray, log_T: np.ndarray, z: np.ndarray, *, z_lab
         heat.update(colorscale=scale, zmin=-0.5, zmax=n - 0.5, showscale=False)
         for label, colour in categorical:        # legend entries for the categories
             fig.add_trace(go.Scatter(x=[None], y=[None], mode="markers", name=label,
-                                     marker=dict(size=14, color=colour, symbol="square"),
+                                     marker=dict(size=18 if presentation else 14, color=colour, symbol="square"),
                                      showlegend=True, hoverinfo="skip"))
     else:
         heat.update(colorscale=colorscale,
-                    colorbar=dict(title=dict(text=z_label, side="right"), thickness=16))
+                    colorbar=dict(title=dict(text=z_label, side="right"), thickness=22 if presentation else 16))
         if z_range is not None:
             heat.update(zmin=z_range[0], zmax=z_range[1])
         elif z_mid is not None:
             heat.update(zmid=z_mid)
+    if customdata is not None:
+        heat.update(customdata=np.asarray(customdata, dtype=np.int8))
     if hover_text is not None:
         heat.update(text=hover_text, hovertemplate="%{text}<extra></extra>")
+    elif categorical:
+        heat.update(hovertemplate="log ρ = %{x:.2f}<br>log T = %{y:.2f}<extra></extra>")
     else:
         heat.update(hovertemplate="log ρ = %{x:.2f}<br>log T = %{y:.2f}<br>"
-                    + z_label + " = %{z:.3g}<extra></extra>")
+                    + z_label + " = %{z:.4g}<extra></extra>")
     fig.add_trace(go.Heatmap(**heat))
 
     x_range = (float(np.min(log_rho)), float(np.max(log_rho)))
     y_range = (float(np.min(log_T)), float(np.max(log_T)))
-    for line in lines:
+    spots = place_labels(lines, x_range, y_range, font)
+    for line, where in zip(lines, spots):
         colour, dash = LINE_STYLES.get(line.style or line.key, ("#111111", "solid"))
         x = np.asarray(line.log_rho, dtype=float)
         y = np.asarray(line.log_T, dtype=float)
@@ -125,21 +184,34 @@ def plane_figure(log_rho: np.ndarray, log_T: np.ndarray, z: np.ndarray, *, z_lab
                                  line=dict(color=colour, dash=dash, width=line.width * line_scale),
                                  hovertemplate=line.label + "<br>log ρ = %{x:.2f}, log T = %{y:.2f}<extra></extra>",
                                  showlegend=False, meta=line.key))
-        where = _label_position(x, y, x_range, y_range)
         if where is not None:
             fig.add_annotation(x=where[0], y=where[1], text=line.label, showarrow=False,
                                font=dict(size=font - 1, color=colour),
-                               bgcolor="rgba(255,255,255,0.78)", borderpad=2, yshift=12)
+                               bgcolor="rgba(255,255,255,0.85)", bordercolor=colour, borderwidth=1,
+                               borderpad=2, yshift=12, name=f"label:{line.key}")
+    for trace in extra_traces:
+        fig.add_trace(trace)
+    axis = dict(showgrid=False, zeroline=False, ticks="outside", mirror=True, showline=True,
+                linecolor="#000" if presentation else "#333", linewidth=2 if presentation else 1)
     fig.update_layout(
         title=dict(text=title, x=0.01, font=dict(size=font + 2)),
-        xaxis=dict(title="log₁₀ ρ  [g cm⁻³]", range=list(x_range), showgrid=False, zeroline=False,
-                   ticks="outside", mirror=True, showline=True, linecolor="#333"),
-        yaxis=dict(title="log₁₀ T  [K]", range=list(y_range), showgrid=False, zeroline=False,
-                   ticks="outside", mirror=True, showline=True, linecolor="#333"),
-        font=dict(size=font, family="Inter, Segoe UI, Helvetica, Arial, sans-serif", color="#1b1b1b"),
-        margin=dict(l=70, r=20, t=50 if title else 20, b=60),
+        xaxis=dict(title="log₁₀ ρ  [g cm⁻³]", range=list(x_range), **axis),
+        yaxis=dict(title="log₁₀ T  [K]", range=list(y_range), **axis),
+        font=dict(size=font, family="Inter, Segoe UI, Helvetica, Arial, sans-serif",
+                  color="#000" if presentation else "#1b1b1b"),
+        margin=dict(l=80 if presentation else 70, r=20,
+                    t=(50 if title else 20) + ((70 if presentation else 40) if categorical else 0),
+                    b=70 if presentation else 60),
         plot_bgcolor="white", paper_bgcolor="white",
-        legend=dict(orientation="h", yanchor="bottom", y=1.01, x=0, bgcolor="rgba(255,255,255,0.8)"),
+        legend=dict(orientation="h", yanchor="bottom", y=1.02, x=0, bgcolor="rgba(255,255,255,0.8)",
+                    font=dict(size=font - 4 if presentation else font)),
         uirevision="plane",
     )
     return fig
+
+
+def graph_config(filename: str = "thermoplane-map", scale: int = 3) -> dict:
+    """dcc.Graph config: the camera button saves a PNG at ``scale`` times the screen size."""
+    return {"displaylogo": False, "responsive": True,
+            "toImageButtonOptions": {"format": "png", "filename": filename, "scale": scale},
+            "modeBarButtonsToRemove": ["lasso2d", "select2d"]}

@@ -1,54 +1,267 @@
-"""The page: a control column (composition, physics, map) beside the map and its readouts.
+"""The page: a control column (composition, physics, map, layers, sharing and
+export, tracks) beside the map, its readouts and the notes on the physics.
 
-Built by functions, one per panel, so each panel's ids sit next to its controls.
+Built by functions, one per panel, so each panel's ids sit next to its
+controls. Every control that belongs to the view is listed in
+:data:`app.state.CONTROLS`.
 """
 
 from __future__ import annotations
 
-from dash import dcc, html
+from dash import dash_table, dcc, html
 
-from .state import DEFAULT_VIEW
+import physics as ph
+from physics import burning, plane, regimes
+
+from . import figures
+from .state import COLOR_CHOICES, DEFAULT_VIEW, UI_RESOLUTION, view_to_controls
+
+#: One-line explanations of the physics options (shown on hover).
+OPTION_HELP = {
+    ("electrons", "fermi"): "Fermi–Dirac electrons of any degeneracy and relativity (needed in white dwarfs "
+                            "and stellar cores).",
+    ("electrons", "classical"): "Electrons as a classical ideal gas, P_e = n_e k T: wrong once η > 0.",
+    ("ionization", "saha"): "Saha equilibrium for H and He with pressure ionization at high density; "
+                            "metals fully ionized.",
+    ("ionization", "full"): "Every atom fully ionized everywhere: wrong in cool envelopes and atmospheres.",
+    "coulomb": "Electrostatic (Coulomb) correction to pressure and energy from a one-component-plasma fit.",
+    "pairs": "Electron–positron pairs created thermally above about 10⁹ K.",
+}
+OPTION_LABELS = {"fermi": "Fermi–Dirac", "classical": "classical", "saha": "Saha (H, He)", "full": "full"}
 
 
-def _number(id_, value, step=0.01, min_=0.0, max_=1.0, label=""):
+def _number(id_, value, step=0.01, min_=0.0, max_=1.0, label="", title=""):
     return html.Label([html.Span(label, className="field-label"),
                        dcc.Input(id=id_, type="number", value=value, step=step, min=min_, max=max_,
-                                 debounce=True, className="number-input")], className="field")
+                                 debounce=True, className="number-input")], className="field", title=title)
 
 
-def composition_panel(view: dict) -> html.Div:
+def _message(id_):
+    return html.Div(id=id_, className="message", role="alert", **{"aria-live": "polite"})
+
+
+def composition_panel(c: dict) -> html.Section:
+    nuclides = [{"label": n, "value": n} for n in ph.NUCLIDES]
     return html.Section([
         html.H3("Composition"),
-        html.P("Mass fractions of hydrogen (X), helium (Y) and metals (Z); they must add up to 1.",
-               className="hint"),
-        html.Div([_number("comp-X", view["X"], label="X"),
-                  _number("comp-Y", view["Y"], label="Y"),
-                  _number("comp-Z", view["Z"], label="Z")], className="field-row"),
-        html.Div(id="comp-message", className="message", role="alert"),
-        html.Div(id="comp-readout", className="readout"),
+        html.P("Mass fractions of hydrogen (X), helium (Y) and metals (Z) add up to 1: tick "
+               "“Z = 1 − X − Y” to let Z follow, or press “normalise”.", className="hint"),
+        html.Div([_number("comp-X", c["X"], label="X", title="hydrogen (H-1) mass fraction"),
+                  _number("comp-Y", c["Y"], label="Y", title="helium (He-4) mass fraction"),
+                  _number("comp-Z", c["Z"], label="Z", title="metal mass fraction")], className="field-row"),
+        html.Div([dcc.Checklist(id="comp-zauto", options=[{"label": " Z = 1 − X − Y", "value": "auto"}],
+                                value=c["zauto"], inline=True, className="check"),
+                  html.Button("normalise", id="comp-normalise", n_clicks=0, className="small",
+                              title="rescale the fractions so that they add up to 1")],
+                 className="field-row tight"),
+        _message("comp-rule-message"),
+        html.Label([html.Span("metal mixture", className="field-label"),
+                    dcc.Dropdown(id="comp-metals", options=list(ph.METAL_MIXTURES), value=c["metals"],
+                                 clearable=False, className="dropdown")],
+                   className="field", title="how Z is shared among the metals (our own rounded mixtures)"),
+        _message("comp-message"),
+        html.Details([
+            html.Summary("any mixture of nuclides"),
+            dcc.Checklist(id="comp-mix-on", options=[{"label": " use this table instead of X, Y, Z", "value": "on"}],
+                          value=c["mix_on"], className="check"),
+            dash_table.DataTable(
+                id="comp-mix-table", data=c["mix"], editable=True, row_deletable=True,
+                columns=[{"name": "nuclide", "id": "nuclide", "presentation": "dropdown"},
+                         {"name": "mass fraction", "id": "fraction", "type": "numeric"}],
+                dropdown={"nuclide": {"options": nuclides, "clearable": False}},
+                style_table={"overflowX": "visible"}, css=[{"selector": ".Select-menu-outer",
+                                                             "rule": "display: block !important"}],
+                style_cell={"fontFamily": "inherit", "fontSize": "0.95rem", "padding": "3px 6px"},
+                style_header={"fontWeight": "600"}),
+            html.Button("add a row", id="comp-mix-add", n_clicks=0, className="small"),
+            _message("mix-message"),
+        ], id="comp-mix", open=bool(c["mix"])),
+        html.Div(id="comp-readout", className="readout", title="fully ionized mean molecular weights"),
     ], className="panel", id="panel-composition")
 
 
-def map_panel() -> html.Div:
+def _radio(id_, option, value):
+    return dcc.RadioItems(
+        id=id_, value=value, inline=True, className="radio",
+        options=[{"label": html.Span(OPTION_LABELS[v], title=OPTION_HELP[(option, v)]), "value": v}
+                 for v in ph.OPTIONS[option]])
+
+
+def physics_panel(c: dict) -> html.Section:
+    return html.Section([
+        html.H3("Physics"),
+        html.Div([html.Span("electrons", className="field-label", title="how the electron gas is treated"),
+                  _radio("phys-electrons", "electrons", c["electrons"])], className="option-row"),
+        html.Div([html.Span("ionization", className="field-label", title="how H and He ionization is treated"),
+                  _radio("phys-ionization", "ionization", c["ionization"])], className="option-row"),
+        dcc.Checklist(id="phys-effects", value=c["effects"], inline=True, className="check",
+                      options=[{"label": html.Span(" Coulomb", title=OPTION_HELP["coulomb"]), "value": "coulomb"},
+                               {"label": html.Span(" pairs", title=OPTION_HELP["pairs"]), "value": "pairs"}]),
+        _message("phys-message"),
+    ], className="panel", id="panel-physics")
+
+
+def map_controls_panel(c: dict) -> html.Section:
+    return html.Section([
+        html.H3("Map"),
+        html.Label([html.Span("shaded quantity", className="field-label"),
+                    dcc.Dropdown(id="map-quantity", value=c["quantity"], clearable=False, className="dropdown",
+                                 options=[{"label": q.label, "value": q.name} for q in plane.QUANTITIES])],
+                   className="field"),
+        html.Label([html.Span("colour scale", className="field-label"),
+                    dcc.Dropdown(id="map-colorscale", value=c["colorscale"], clearable=False, className="dropdown",
+                                 options=[{"label": v[0], "value": k} for k, v in COLOR_CHOICES.items()])],
+                   className="field", title="perceptually uniform sequential scales, or colour-blind-safe "
+                                            "diverging scales centred on the quantity's natural centre"),
+        html.Div([_number("map-rho-lo", c["rho_lo"], 0.5, *plane.LOG_RHO_LIMITS, label="log ρ from"),
+                  _number("map-rho-hi", c["rho_hi"], 0.5, *plane.LOG_RHO_LIMITS, label="to")], className="field-row"),
+        html.Div([_number("map-T-lo", c["T_lo"], 0.5, *plane.LOG_T_LIMITS, label="log T from"),
+                  _number("map-T-hi", c["T_hi"], 0.5, *plane.LOG_T_LIMITS, label="to"),
+                  _number("map-resolution", c["resolution"], 10, *UI_RESOLUTION, label="pixels",
+                          title=f"pixels per side, {UI_RESOLUTION[0]}–{UI_RESOLUTION[1]}")], className="field-row"),
+        _message("map-range-message"),
+        _message("map-message"),
+    ], className="panel", id="panel-map")
+
+
+def layers_panel(c: dict) -> html.Section:
+    return html.Section([
+        html.H3("Lines on the map"),
+        dcc.Checklist(id="map-layers", value=c["layers"], className="check column",
+                      options=[{"label": " " + regimes.BOUNDARY_LABELS[k], "value": k}
+                               for k in regimes.BOUNDARY_KEYS]),
+        dcc.Checklist(id="map-overlays", value=c["overlays"], className="check column",
+                      options=[{"label": " ignition contours", "value": "ignition"},
+                               {"label": " central lines of stars (n = 3 polytropes)", "value": "mass_lines"}]),
+        html.Label([html.Span("burning processes", className="field-label"),
+                    dcc.Dropdown(id="map-processes", value=c["processes"], multi=True, className="dropdown",
+                                 options=[{"label": burning.PROCESS_LABELS[p], "value": p}
+                                          for p in burning.PROCESSES])], className="field"),
+        html.Label([html.Span("ε levels, erg g⁻¹ s⁻¹", className="field-label"),
+                    dcc.Input(id="map-levels", type="text", value=c["levels"], debounce=True,
+                              className="text-input")], className="field"),
+        _message("map-levels-message"),
+        html.Label([html.Span("stellar masses, M☉", className="field-label"),
+                    dcc.Input(id="map-masses", type="text", value=c["masses"], debounce=True,
+                              className="text-input")], className="field"),
+        _message("map-masses-message"),
+    ], className="panel", id="panel-layers")
+
+
+def share_panel() -> html.Section:
+    return html.Section([
+        html.H3("Share and export"),
+        html.P("This link restores the whole view:", className="hint"),
+        html.Div([dcc.Input(id="share-link", type="text", readOnly=True, className="text-input"),
+                  dcc.Clipboard(target_id="share-link", id="share-copy", title="copy link",
+                                className="clip")], className="field-row tight"),
+        _message("share-message"),
+        html.Div([html.Button("PNG", id="export-png", n_clicks=0, title="image at 3× screen size"),
+                  html.Button("SVG", id="export-svg", n_clicks=0, title="vector image"),
+                  html.Button("HTML", id="export-html", n_clicks=0,
+                              title="interactive figure in one file that opens offline"),
+                  html.Button("CSV", id="export-csv", n_clicks=0, title="the shaded grid as a table")],
+                 className="button-row"),
+        dcc.Download(id="download-html"), dcc.Download(id="download-csv"),
+        _message("export-message"),
+    ], className="panel", id="panel-share")
+
+
+def tracks_panel() -> html.Section:
+    """Place for stellar tracks (uploads are wired in separately)."""
+    return html.Section([html.H3("Tracks"), html.Div(id="tracks-body")], className="panel", id="panel-tracks")
+
+
+def about_physics() -> list:
+    """The text of the "about the physics" panel (one place, easy to update)."""
+    P = html.P
+    return [
+        P("What is computed. For the composition and options chosen, Thermoplane evaluates the equation of "
+          "state of stellar matter at every pixel of the density–temperature plane: ideal ions, radiation "
+          "(P = aT⁴/3), electrons and positrons as a Fermi–Dirac gas of any degeneracy and relativity "
+          "(generalized Fermi–Dirac integrals; Cox & Giuli 1968, ch. 24), Saha ionization of hydrogen and "
+          "helium with the electron chemical potential and a pressure-ionization rule that ionizes them at "
+          "high density, and Coulomb corrections from a published fit for the one-component plasma "
+          "(Chabrier & Potekhin 1998, Phys. Rev. E 58, 4941) scaled by the ionization. Metals are taken as "
+          "fully ionized. The derivatives give Γ₁, ∇_ad and the sound speed."),
+        P("The lines. P_rad = P_gas; electron degeneracy η = 0; relativistic electrons x_F = 1 "
+          "(Chandrasekhar 1939); pair onset where positrons reach 1 % of the electrons; Coulomb coupling "
+          "Γ = 1 and crystallization Γ = 175 (Potekhin & Chabrier 2000, Phys. Rev. E 62, 8554); half "
+          "ionization of H and of He⁺. Each is found from the full equation of state, so it bends where "
+          "the physics does. Ignition contours are lines of constant energy generation from the rate fits "
+          "in Kippenhahn, Weigert & Weiss (2012, Stellar Structure and Evolution, ch. 18; pp, CNO, triple "
+          "alpha) and Caughlan & Fowler (1988; carbon), with weak screening (Salpeter 1954). The central "
+          "lines of stars are n = 3 polytropes, P_c = 0.364 G M^(2/3) ρ_c^(4/3), solved with the full "
+          "equation of state."),
+        P("Where it fails. No molecules or neutral metals (below about 10⁴ K at low density the results "
+          "are approximate); no neutronization, nuclear statistical equilibrium or neutrino losses; the "
+          "Coulomb and pressure-ionization treatments are approximate near ρ ~ 1–100 g cm⁻³ at low T; "
+          "screening is weak screening only, so burning rates in dense, cool plasma are underestimated."),
+        P("Results are for exploration and checks. For a publication, compare against a full tabulated "
+          "equation of state.", className="strong"),
+    ]
+
+
+def about_panel() -> html.Details:
+    return html.Details([html.Summary("About the physics"), html.Div(about_physics(), id="about-text")],
+                        className="panel about", id="panel-about")
+
+
+def point_panel() -> html.Section:
+    return html.Section([
+        html.Div([html.H3("Point", className="inline"),
+                  dcc.RadioItems(id="point-units", value="cgs", inline=True, className="radio",
+                                 options=[{"label": " cgs", "value": "cgs"}, {"label": " SI", "value": "si"}]),
+                  html.Span("copy as", className="field-label"),
+                  dcc.Clipboard(target_id="point-json", id="point-copy-json", className="clip",
+                                title="copy the pinned state as JSON"),
+                  html.Span("JSON", className="clip-label"),
+                  dcc.Clipboard(target_id="point-csv", id="point-copy-csv", className="clip",
+                                title="copy the pinned state as CSV"),
+                  html.Span("CSV", className="clip-label")], className="point-bar"),
+        html.Div("Click the map to pin a point.", id="point-heading", className="readout"),
+        _message("point-message"),
+        html.Div(id="point-table"),
+        html.Details([html.Summary("as text"),
+                      dcc.Textarea(id="point-json", readOnly=True, className="copy-text"),
+                      dcc.Textarea(id="point-csv", readOnly=True, className="copy-text")]),
+    ], className="panel", id="panel-point")
+
+
+def map_area() -> html.Div:
     return html.Div([
-        dcc.Loading(dcc.Graph(id="plane-graph", config={"displaylogo": False, "responsive": True},
-                              style={"height": "74vh"}), type="circle", delay_show=250),
-        html.Div(id="limits-note", className="limits", children=[
-            "Exploration tool: ideal gas plus radiation in this version; no degeneracy, ionization, "
-            "Coulomb or pair physics yet. Check results against a full tabulated equation of state "
-            "before publishing them."]),
+        dcc.Loading(dcc.Graph(id="plane-graph", config=figures.graph_config(), className="plane-graph",
+                              style={"height": "72vh", "minHeight": "480px"}),
+                    type="circle", delay_show=250, id="plane-loading"),
+        html.Div("Hover over the map to read a point.", id="hover-readout", className="readout hover"),
+        point_panel(),
+        about_panel(),
     ], className="main")
 
 
+def _labels() -> dict:
+    return {"regimes": [r.label for r in regimes.REGIMES],
+            "quantities": {q.name: q.label for q in plane.QUANTITIES}}
+
+
 def build_layout():
-    """Called per page load, so every visitor starts from the defaults (no server state)."""
-    view = dict(DEFAULT_VIEW)
+    """Called per page load, so every visitor starts from the defaults (no server state);
+    the URL callback then applies the link's view."""
+    c = view_to_controls(DEFAULT_VIEW)
     return html.Div([
+        dcc.Location(id="url", refresh=False),
+        dcc.Store(id="view-store"), dcc.Store(id="presentation-store", data=c["presentation"]),
+        dcc.Store(id="labels-store", data=_labels()),
         html.Header([html.H1("Thermoplane"),
-                     html.Span("the density–temperature plane of stellar matter", className="tagline")],
+                     html.Span("the density–temperature plane of stellar matter", className="tagline"),
+                     html.Span(className="spacer"),
+                     html.Button("reset view", id="reset-view", n_clicks=0, title="back to the default view"),
+                     html.Button("Presentation mode", id="presentation-toggle", n_clicks=0,
+                                 title="large type, thick lines, controls folded away")],
                     className="topbar"),
         html.Div([
-            html.Aside([composition_panel(view)], className="controls", id="controls"),
-            map_panel(),
+            html.Aside([composition_panel(c), physics_panel(c), map_controls_panel(c), layers_panel(c),
+                        share_panel(), tracks_panel()], className="controls", id="controls"),
+            map_area(),
         ], className="body"),
     ], className="page", id="page")

@@ -1,0 +1,176 @@
+"""The composition panel: X, Y, Z (with the sum rule), metal mixture, any mixture of nuclides.
+
+The sum rule: X, Y and Z must add up to 1. Either tick "Z = 1 − X − Y" (Z then
+follows X and Y), or edit all three and press "normalise" to rescale them to a
+sum of 1. While the sum is off, a message says so and the last good map stays.
+A non-empty nuclide table that is switched on replaces X, Y, Z and the metals.
+"""
+
+from __future__ import annotations
+
+import math
+
+from dash import Input, Output, State, ctx, no_update
+
+import physics as ph
+
+__all__ = ["CompositionError", "MixError", "number", "composition_from_view", "apply_rules",
+           "add_mix_row", "register"]
+
+
+class CompositionError(ValueError):
+    """A problem with X, Y, Z or the metal mixture (shown next to those fields)."""
+
+
+class MixError(ValueError):
+    """A problem with the nuclide table (shown next to the table)."""
+
+
+def number(value, name: str, lo: float | None = None, hi: float | None = None) -> float:
+    """A finite float from a browser field; ValueError naming the field otherwise."""
+    if value is None or (isinstance(value, str) and not value.strip()):
+        raise ValueError(f"{name} is empty; enter a number")
+    if isinstance(value, bool):
+        raise ValueError(f"{name} = {value!r} is not a number")
+    try:
+        x = float(value)
+    except (TypeError, ValueError):
+        raise ValueError(f"{name} = {value!r} is not a number") from None
+    if not math.isfinite(x):
+        raise ValueError(f"{name} = {value!r} is not a finite number")
+    if lo is not None and x < lo or hi is not None and x > hi:
+        raise ValueError(f"{name} = {x:g} must be between {lo:g} and {hi:g}")
+    return x
+
+
+def _mix_composition(rows) -> ph.Composition:
+    fractions: dict[str, float] = {}
+    for i, (name, frac) in enumerate(rows, start=1):
+        if name not in ph.NUCLIDES:
+            raise MixError(f"row {i}: choose a nuclide (one of {', '.join(ph.NUCLIDES)})")
+        try:
+            f = number(frac, f"row {i} ({name}) fraction", 0.0, 1.0)
+        except ValueError as err:
+            raise MixError(str(err)) from None
+        fractions[name] = fractions.get(name, 0.0) + f
+    total = sum(fractions.values())
+    if abs(total - 1.0) > 1e-6:
+        raise MixError(f"the table's fractions add up to {total:.6g}; they must be 1 "
+                       "(press “normalise” to rescale them)")
+    try:
+        return ph.Composition(fractions)
+    except ValueError as err:
+        raise MixError(str(err)) from None
+
+
+def composition_from_view(view: dict) -> ph.Composition:
+    """The composition a view asks for.
+
+    Raises
+    ------
+    MixError
+        The nuclide table is on and not empty, and it is not a valid mixture.
+    CompositionError
+        X, Y, Z empty, outside [0, 1], not summing to 1, or an unknown metal mixture.
+    """
+    rows = view.get("mix") or ()
+    if view.get("mix_on") and rows:
+        return _mix_composition(rows)
+    try:
+        X = number(view.get("X"), "X", 0.0, 1.0)
+        Y = number(view.get("Y"), "Y", 0.0, 1.0)
+        if view.get("zauto"):
+            Z = 1.0 - X - Y
+            if Z < -1e-9:
+                raise ValueError(f"X + Y = {X + Y:.6g} is more than 1, so Z = 1 − X − Y would be negative")
+            Z = max(Z, 0.0)
+        else:
+            Z = number(view.get("Z"), "Z", 0.0, 1.0)
+            total = X + Y + Z
+            if abs(total - 1.0) > 1e-6:
+                raise ValueError(f"X + Y + Z = {total:.6g}; the sum must be 1. Tick “Z = 1 − X − Y” "
+                                 "or press “normalise”")
+        metals = view.get("metals")
+        if metals not in ph.METAL_MIXTURES:
+            raise ValueError(f"unknown metal mixture {metals!r}; choose one of {', '.join(ph.METAL_MIXTURES)}")
+        return ph.Composition.from_xyz(X, Y, Z, metals=metals)
+    except CompositionError:
+        raise
+    except ValueError as err:
+        raise CompositionError(str(err)) from None
+
+
+def readout(comp: ph.Composition) -> str:
+    """The live mean molecular weights."""
+    return f"μ = {comp.mu:.4f}   μ_e = {comp.mu_e:.4f}   μ_ion = {comp.mu_ion:.4f}"
+
+
+def apply_rules(trigger, X, Y, Z, zauto, rows):
+    """Keep X, Y, Z consistent: Z follows X and Y when "auto" is ticked; "normalise" rescales.
+
+    Returns (X, Y, Z, Z disabled, table rows, message); a value that should
+    not change is ``no_update``. Normalising rescales the nuclide table when
+    it has rows and is switched on (``rows`` is then a list), else X, Y, Z.
+    """
+    auto = "auto" in (zauto or ())
+    try:
+        if trigger == "comp-normalise":
+            if rows is not None:
+                fracs = [number(r.get("fraction"), f"row {i} fraction", 0.0)
+                         for i, r in enumerate(rows, start=1)]
+                total = sum(fracs)
+                if total <= 0:
+                    raise ValueError("the table's fractions add up to 0; enter some fractions first")
+                new = [{**r, "fraction": round(f / total, 10)} for r, f in zip(rows, fracs)]
+                return no_update, no_update, no_update, auto, new, ""
+            x, y = number(X, "X", 0.0), number(Y, "Y", 0.0)
+            z = 0.0 if auto else number(Z, "Z", 0.0)
+            total = x + y + z
+            if total <= 0:
+                raise ValueError("X + Y + Z is 0; enter some mass fractions first")
+            x, y, z = (round(v / total, 10) for v in (x, y, z))
+            if auto:
+                z = round(max(1.0 - x - y, 0.0), 10)
+            return x, y, z, auto, no_update, ""
+        if auto:
+            x, y = number(X, "X", 0.0, 1.0), number(Y, "Y", 0.0, 1.0)
+            z = round(1.0 - x - y, 10)
+            return no_update, no_update, (z if z >= 0 else no_update), True, no_update, no_update
+        return no_update, no_update, no_update, False, no_update, no_update
+    except ValueError as err:
+        return no_update, no_update, no_update, auto, no_update, str(err)
+
+
+def add_mix_row(rows):
+    """One more empty row in the nuclide table."""
+    rows = list(rows or [])
+    if len(rows) >= 30:
+        return rows
+    return rows + [{"nuclide": None, "fraction": None}]
+
+
+def register(app) -> None:
+    @app.callback(
+        Output("comp-X", "value", allow_duplicate=True), Output("comp-Y", "value", allow_duplicate=True),
+        Output("comp-Z", "value", allow_duplicate=True), Output("comp-Z", "disabled"),
+        Output("comp-mix-table", "data", allow_duplicate=True),
+        Output("comp-rule-message", "children"),
+        Input("comp-X", "value"), Input("comp-Y", "value"), Input("comp-zauto", "value"),
+        Input("comp-normalise", "n_clicks"),
+        State("comp-Z", "value"), State("comp-mix-table", "data"), State("comp-mix-on", "value"),
+        prevent_initial_call=True,
+    )
+    def _rules(X, Y, zauto, _n, Z, rows, mix_on):
+        try:
+            table = rows if ("on" in (mix_on or ()) and rows) else None
+            return apply_rules(ctx.triggered_id, X, Y, Z, zauto, table)
+        except Exception:                      # never a traceback in the page
+            import logging
+            logging.getLogger(__name__).exception("composition rule failed")
+            return no_update, no_update, no_update, no_update, no_update, "Something went wrong; see the server log."
+
+    @app.callback(Output("comp-mix-table", "data", allow_duplicate=True),
+                  Input("comp-mix-add", "n_clicks"), State("comp-mix-table", "data"),
+                  prevent_initial_call=True)
+    def _add(_n, rows):
+        return add_mix_row(rows)

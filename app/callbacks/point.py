@@ -1,0 +1,120 @@
+"""The point readout: click the map to pin a point and read its full state.
+
+cgs inside; the SI switch converts at this display edge only.
+"""
+
+from __future__ import annotations
+
+import csv
+import io
+import json
+import logging
+import math
+
+from dash import Input, Output, State, html, no_update
+
+import physics as ph
+
+from .map import ViewError, parse_view, view_from_store
+
+log = logging.getLogger(__name__)
+
+__all__ = ["SI", "to_si", "point_values", "state_table", "as_json", "as_csv", "pin_point", "register"]
+
+#: cgs unit -> (SI unit, factor: value_SI = factor * value_cgs).
+SI = {
+    "": ("", 1.0), "K": ("K", 1.0),
+    "g cm^-3": ("kg m^-3", 1e3),
+    "dyn cm^-2": ("Pa", 0.1),
+    "erg g^-1": ("J kg^-1", 1e-4),
+    "erg g^-1 K^-1": ("J kg^-1 K^-1", 1e-4),
+    "erg g^-1 K^-2": ("J kg^-1 K^-2", 1e-4),
+    "cm s^-1": ("m s^-1", 1e-2),
+    "dyn cm^-2 / (g cm^-3)": ("Pa / (kg m^-3)", 1e-4),
+    "dyn cm^-2 K^-1": ("Pa K^-1", 0.1),
+    "erg g^-1 / (g cm^-3)": ("J kg^-1 / (kg m^-3)", 1e-7),
+    "cm^-3": ("m^-3", 1e6),
+}
+
+
+def to_si(value: float, unit: str) -> tuple[float, str]:
+    """A cgs value and unit in SI; ValueError for a unit not in :data:`SI`."""
+    if unit not in SI:
+        raise ValueError(f"no SI conversion for unit {unit!r}")
+    si_unit, factor = SI[unit]
+    return value * factor, si_unit
+
+
+def point_values(comp, opts: dict, log_rho: float, log_T: float) -> dict[str, float]:
+    """Every ThermoState field at one point, cgs."""
+    state = ph.evaluate(10.0 ** log_rho, 10.0 ** log_T, comp, **opts)
+    return state.at(())
+
+
+def rows(values: dict[str, float], units: str = "cgs") -> list[tuple[str, float, str, str]]:
+    """(name, value, unit, description) for every field, in the units asked for."""
+    out = []
+    for name, v in values.items():
+        unit = ph.FIELD_UNITS[name]
+        if units == "si":
+            v, unit = to_si(v, unit)
+        out.append((name, v, unit, ph.FIELD_DESCRIPTIONS[name]))
+    return out
+
+
+def _fmt(v: float) -> str:
+    return f"{v:.6g}" if math.isfinite(v) else str(v)
+
+
+def state_table(table_rows) -> html.Table:
+    return html.Table([
+        html.Thead(html.Tr([html.Th("quantity"), html.Th("value"), html.Th("unit"), html.Th("meaning")])),
+        html.Tbody([html.Tr([html.Td(n, className="mono"), html.Td(_fmt(v), className="mono num"),
+                             html.Td(u or "—"), html.Td(d)]) for n, v, u, d in table_rows]),
+    ], className="state-table", id="point-state-table")
+
+
+def as_json(point: dict, table_rows, units: str) -> str:
+    return json.dumps({**point, "units_system": units,
+                       "state": {n: (v if math.isfinite(v) else None) for n, v, _, _ in table_rows},
+                       "units": {n: u for n, _, u, _ in table_rows}}, indent=2)
+
+
+def as_csv(table_rows) -> str:
+    buf = io.StringIO()
+    w = csv.writer(buf, lineterminator="\n")
+    w.writerow(["quantity", "value", "unit", "meaning"])
+    for n, v, u, d in table_rows:
+        w.writerow([n, repr(v), u, d])
+    return buf.getvalue()
+
+
+def pin_point(click, units, store):
+    """Callback body: (heading, table, JSON text, CSV text, message)."""
+    try:
+        if not click or not click.get("points"):
+            return "Click the map to pin a point.", None, "", "", ""
+        pt = click["points"][0]
+        log_rho, log_T = float(pt["x"]), float(pt["y"])
+        view = view_from_store(store)
+        comp, opts, _ = parse_view(view)
+        values = point_values(comp, opts, log_rho, log_T)
+        units = "si" if units == "si" else "cgs"
+        table_rows = rows(values, units)
+        heading = (f"Pinned: log ρ = {log_rho:.3f}, log T = {log_T:.3f}  "
+                   f"(ρ = {10 ** log_rho:.4g} g cm⁻³, T = {10 ** log_T:.4g} K)")
+        point = {"log_rho": log_rho, "log_T": log_T, "composition": comp.to_dict(), "options": opts}
+        return heading, state_table(table_rows), as_json(point, table_rows, units), as_csv(table_rows), ""
+    except (ViewError, ValueError) as err:
+        return no_update, no_update, no_update, no_update, str(err)
+    except Exception:
+        log.exception("point readout failed")
+        return no_update, no_update, no_update, no_update, "Something went wrong; the server log has the details."
+
+
+def register(app) -> None:
+    app.callback(
+        Output("point-heading", "children"), Output("point-table", "children"),
+        Output("point-json", "value"), Output("point-csv", "value"), Output("point-message", "children"),
+        Input("plane-graph", "clickData"), Input("point-units", "value"), Input("view-store", "data"),
+    )(pin_point)

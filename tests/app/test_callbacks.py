@@ -1,0 +1,246 @@
+"""Callbacks as plain functions: parse -> physics -> figures, no browser."""
+
+from __future__ import annotations
+
+import json
+
+import numpy as np
+import plotly
+import pytest
+from dash import no_update
+
+import physics as ph
+from app.callbacks import composition, export, layers, point, share
+from app.callbacks import map as map_cb
+from app.state import DEFAULT_VIEW, encode_view, view_to_controls
+from physics import eos, plane
+
+# The textbook physics keeps these tests quick; the full physics goes through the same code.
+FAST = {"electrons": "classical", "ionization": "full", "coulomb": False, "pairs": False}
+VIEW = {**DEFAULT_VIEW, **FAST, "resolution": 60, "masses": "1", "processes": ("pp",)}
+
+
+def controls(**changes):
+    """Control values for VIEW with changes: view entries first, then control-only entries."""
+    view = {**VIEW, **{k: v for k, v in changes.items() if k in DEFAULT_VIEW}}
+    return {**view_to_controls(view), **{k: v for k, v in changes.items() if k not in DEFAULT_VIEW}}
+
+
+def heatmap(fig):
+    return next(t for t in fig.data if t.type == "heatmap")
+
+
+def metas(fig):
+    return {t.meta for t in fig.data if t.meta}
+
+
+def test_default_view_draws_the_map_with_its_lines():
+    out = map_cb.update_map(**controls())
+    fig = out["figure"]
+    assert heatmap(fig).z.shape == (60, 60)
+    assert {"equality", "degeneracy", "ignition_pp_1", "mass_1"} <= metas(fig)
+    labels = {a.text for a in fig.layout.annotations}
+    assert "1 M☉" in labels and "P_rad = P_gas" in labels
+    assert out["readout"].startswith("μ = 0.62")
+    assert all(out[m] == "" for m in map_cb.MESSAGES)
+    assert out["view"]["query"] == encode_view(VIEW)
+
+
+def test_regime_map_has_a_legend_and_int8_codes():
+    fig = map_cb.update_map(**controls(quantity="regime"))["figure"]
+    legend = [t.name for t in fig.data if t.showlegend]
+    assert legend == [r.label for r in ph.regimes.REGIMES] if hasattr(ph, "regimes") else legend
+    assert heatmap(fig).customdata.dtype == np.int8
+
+
+def test_sum_off_keeps_the_last_map_and_says_why():
+    out = map_cb.update_map(**controls(X=0.0))
+    assert out["figure"] is no_update and out["view"] is no_update
+    assert "must be 1" in out["comp-message"]
+
+
+def test_z_follows_x_and_y_when_auto():
+    out = map_cb.update_map(**controls(X=0.5, Y=0.3, Z=None, zauto=True))
+    assert out["comp-message"] == ""
+    comp = ph.Composition.from_xyz(0.5, 0.3, 0.2)
+    assert out["readout"] == composition.readout(comp)
+
+
+def test_nuclide_table_overrides_xyz():
+    out = map_cb.update_map(**controls(mix=(("He-4", 0.98), ("C-12", 0.02)), mix_on=True))
+    comp = ph.Composition({"He-4": 0.98, "C-12": 0.02})
+    assert out["readout"] == composition.readout(comp)
+    # an unfinished table reports next to itself
+    bad = map_cb.update_map(**controls(mix=(("He-4", 0.5), ("", 0.2)), mix_on=True))
+    assert bad["figure"] is no_update and "row 2" in bad["mix-message"]
+    off = map_cb.update_map(**controls(mix=(("He-4", 0.5),), mix_on=False))
+    assert off["mix-message"] == "" and off["figure"] is not no_update
+
+
+@pytest.mark.parametrize("change, where", [
+    (dict(rho_lo=5, rho_hi=1), "map-range-message"),
+    (dict(T_lo=None), "map-range-message"),
+    (dict(resolution=5), "map-range-message"),
+    (dict(X="abc"), "comp-message"),
+    (dict(electrons="quantum"), "phys-message"),
+])
+def test_errors_show_next_to_the_control(change, where):
+    out = map_cb.update_map(**controls(**change))
+    assert out["figure"] is no_update
+    assert out[where] != ""
+
+
+def test_bad_list_drops_only_that_layer():
+    out = map_cb.update_map(**controls(levels="1, lots"))
+    assert "'lots'" in out["map-levels-message"]
+    assert out["figure"] is not no_update and not any(m.startswith("ignition") for m in metas(out["figure"]))
+    out = map_cb.update_map(**controls(masses="-1"))
+    assert out["map-masses-message"] and "mass_1" not in metas(out["figure"])
+
+
+def test_unexpected_error_gives_a_generic_message(monkeypatch):
+    def boom(*a, **k):
+        raise RuntimeError("internal detail")
+    monkeypatch.setattr(plane, "plane_grid", boom)
+    out = map_cb.update_map(**controls(resolution=70))
+    assert out["map-message"] == map_cb.GENERIC_ERROR and "internal" not in json.dumps(
+        {k: v for k, v in out.items() if isinstance(v, str)})
+
+
+def test_quantity_colour_and_layers_cost_no_physics(monkeypatch):
+    map_cb.update_map(**controls())                       # fill the caches
+    calls = []
+    real = eos.evaluate
+    monkeypatch.setattr(eos, "evaluate", lambda *a, **k: calls.append(1) or real(*a, **k))
+    before = plane.evaluation_count()
+    for change in (dict(quantity="eta"), dict(quantity="gamma1", colorscale="magma"),
+                   dict(layers=("equality",)), dict(overlays=[]), dict(overlays=["ignition"]),
+                   dict(presentation=True)):
+        out = map_cb.update_map(**controls(**change))
+        assert out["figure"] is not no_update
+    assert plane.evaluation_count() == before
+    assert calls == []
+
+
+def test_a_composition_change_costs_one_plane_evaluation():
+    before = plane.evaluation_count()
+    map_cb.update_map(**controls(X=0.6, Y=0.38))
+    assert plane.evaluation_count() == before + 1
+
+
+def test_diverging_scale_is_centred_where_the_quantity_has_a_centre():
+    fig = map_cb.update_map(**controls(quantity="eta", colorscale="auto"))["figure"]
+    assert heatmap(fig).zmid == 0.0 and heatmap(fig).colorscale[0][1] != ""
+    fig = map_cb.update_map(**controls(quantity="gamma1", colorscale="auto"))["figure"]
+    assert heatmap(fig).zmid is None
+
+
+def test_payload_at_300_pixels_is_small():
+    out = map_cb.update_map(**controls(resolution=300, masses="0.1, 1, 10", processes=("pp", "triple_alpha")))
+    size = len(json.dumps(out["figure"].to_plotly_json(), cls=plotly.utils.PlotlyJSONEncoder))
+    assert size < 1.5e6                                   # the issue's limit
+    assert heatmap(out["figure"]).z.dtype == np.float32
+
+
+def test_map_figure_for_the_command_line():
+    fig = map_cb.map_figure(ph.Composition.from_xyz(0.7, 0.28, 0.02), {**VIEW})
+    assert heatmap(fig).z.shape == (60, 60)
+
+
+def test_extra_traces_are_drawn_on_top():
+    import plotly.graph_objects as go
+    extra = go.Scatter(x=[0, 1], y=[5, 6], meta="track")
+    fig = map_cb.map_figure(ph.Composition.from_xyz(0.7, 0.28, 0.02), {**VIEW}, extra_traces=[extra])
+    assert fig.data[-1].meta == "track"
+
+
+# -- composition rules ------------------------------------------------------------
+
+def test_auto_z_and_normalise():
+    x, y, z, disabled, rows, msg = composition.apply_rules("comp-X", 0.6, 0.3, 0.5, ["auto"], None)
+    assert z == pytest.approx(0.1) and disabled is True
+    x, y, z, disabled, rows, msg = composition.apply_rules("comp-normalise", 0.7, 0.7, 0.6, [], None)
+    assert (x, y, z) == pytest.approx((0.35, 0.35, 0.3)) and disabled is False
+    *_, rows, msg = composition.apply_rules("comp-normalise", 1, 1, 1, [],
+                                            [{"nuclide": "He-4", "fraction": 3}, {"nuclide": "C-12", "fraction": 1}])
+    assert [r["fraction"] for r in rows] == [0.75, 0.25]
+    *_, msg = composition.apply_rules("comp-normalise", 0, 0, 0, [], None)
+    assert "0" in msg
+
+
+def test_add_row():
+    assert composition.add_mix_row(None) == [{"nuclide": None, "fraction": None}]
+
+
+# -- point readout ------------------------------------------------------------------
+
+def store(**changes):
+    return map_cb.update_map(**controls(**changes))["view"]
+
+
+def test_pin_gives_every_field_with_units_and_si_conversion():
+    click = {"points": [{"x": 2.0, "y": 6.0}]}
+    heading, table, js, csv_text, msg = point.pin_point(click, "cgs", store())
+    data = json.loads(js)
+    assert msg == "" and set(data["state"]) == set(ph.FIELD_UNITS)
+    assert data["units"]["P"] == "dyn cm^-2"
+    assert data["state"]["rho"] == pytest.approx(100.0)
+    _, _, js_si, csv_si, _ = point.pin_point(click, "si", store())
+    si = json.loads(js_si)
+    # 1 dyn cm^-2 = 0.1 Pa; 1 g cm^-3 = 1000 kg m^-3 (definitions of the units)
+    assert si["state"]["P"] == pytest.approx(0.1 * data["state"]["P"])
+    assert si["state"]["rho"] == pytest.approx(1e5) and si["units"]["rho"] == "kg m^-3"
+    assert csv_si.splitlines()[0] == "quantity,value,unit,meaning"
+    assert len(csv_si.splitlines()) == 1 + len(ph.FIELD_UNITS)
+
+
+def test_every_unit_has_an_si_conversion():
+    assert set(ph.FIELD_UNITS.values()) <= set(point.SI)
+
+
+def test_no_click_yet():
+    heading, table, *_ = point.pin_point(None, "cgs", None)
+    assert table is None and "Click" in heading
+
+
+# -- sharing ------------------------------------------------------------------------
+
+def test_apply_url_reset_and_presentation():
+    values, msg = share.apply_url(None, encode_view(VIEW), False)
+    assert values == view_to_controls(VIEW) and msg == ""
+    values, msg = share.apply_url(None, "?X=oops", False)
+    assert values["X"] == DEFAULT_VIEW["X"] and "X" in msg
+    values, _ = share.apply_url("reset-view", "?X=0.5", True)
+    assert values == view_to_controls({**DEFAULT_VIEW, "presentation": True})
+    values, _ = share.apply_url("presentation-toggle", "", False)
+    assert values["presentation"] is True and values["X"] is no_update
+
+
+# -- export -------------------------------------------------------------------------
+
+def test_html_export_is_standalone():
+    data, msg = export.html_export(1, store())
+    assert msg == "" and data["filename"].endswith(".html")
+    assert "<script src=\"http" not in data["content"] and "Plotly" in data["content"]
+    assert len(data["content"]) > 1e6                  # plotly.js inlined
+
+
+def test_csv_export_columns_and_safety():
+    data, msg = export.csv_export(1, store(quantity="eta"))
+    lines = data["content"].splitlines()
+    assert lines[1] == "log_rho,log_T,eta,regime"
+    assert len(lines) == 2 + 60 * 60
+    first = lines[2].split(",")
+    assert float(first[0]) == pytest.approx(-10.0) and float(first[1]) == pytest.approx(3.0)
+    assert first[2].startswith("-") or first[2][0].isdigit()   # numbers untouched, minus sign kept
+
+
+def test_spreadsheet_safe():
+    assert export.spreadsheet_safe("=SUM(A1)") == "'=SUM(A1)"
+    assert export.spreadsheet_safe("@x") == "'@x" and export.spreadsheet_safe("-1+1") == "'-1+1"
+    assert export.spreadsheet_safe(-1.5) == -1.5 and export.spreadsheet_safe("ideal_gas") == "ideal_gas"
+
+
+def test_layer_caches_are_bounded():
+    for f in (layers._boundaries, layers._ignition, layers._central):
+        assert f.cache_info().maxsize is not None
