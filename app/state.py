@@ -51,7 +51,7 @@ DEFAULT_VIEW = {
     "log_rho": (-10.0, 10.0),
     "log_T": (3.0, 10.0),
     "resolution": 300,
-    "quantity": "regime",
+    "quantity": "log_prad_pgas",
     "colorscale": "auto",
     "layers": tuple(regimes.BOUNDARY_KEYS),
     "ignition": True,

@@ -57,8 +57,13 @@ _MC2 = const.m_e * const.c ** 2
 _K = const.k_B
 #: (log10 n_min, log10 n_max, log10 T_min, log10 T_max) of the table
 TABLE_RANGE = (4.0, 37.0, 3.0, 11.5)
+#: (log10 n_min, log10 n_max, log10 T_min, log10 T_max) of the fine pair table of the pair onset
+ONSET_RANGE = (4.0, 37.0, 8.2, 9.7)
+#: its spacing (dex) in log10 n and log10 T: e^(-2/theta) changes fast with T at the onset
+ONSET_SPACING = (0.05, 0.01)
 _DATA = Path(__file__).resolve().parent / "data"
-_FILES = {True: "electron_table_pairs.npz", False: "electron_table_nopairs.npz"}
+_FILES = {True: "electron_table_pairs.npz", False: "electron_table_nopairs.npz",
+          "onset": "electron_table_pair_onset.npz"}
 _LN10 = np.log(10.0)
 #: below this zeta the expansions replace the subtractions P - P_0, S - S_0, ...
 _ZETA_SERIES = 1e-2
@@ -92,8 +97,8 @@ _M5 = _hermite_matrix(2)
 _M3 = _hermite_matrix(1)
 
 
-def _grid(dlogn, dlogT):
-    ln0, ln1, lt0, lt1 = TABLE_RANGE
+def _grid(dlogn, dlogT, table_range=TABLE_RANGE):
+    ln0, ln1, lt0, lt1 = table_range
     nu = int(round((ln1 - ln0) / dlogn)) + 1
     nv = int(round((lt1 - lt0) / dlogT)) + 1
     return np.linspace(ln0, ln1, nu) * _LN10, np.linspace(lt0, lt1, nv) * _LN10
@@ -142,7 +147,7 @@ def _zero_charge_dn_deta(T):
     return electron_gas(-_MC2 / (_K * T), T, pairs=True).dn_deta
 
 
-def build_table(pairs, dlogn=0.05, dlogT=0.05, fd_step=1e-2):
+def build_table(pairs, dlogn=0.05, dlogT=0.05, fd_step=1e-2, table_range=TABLE_RANGE):
     """Node data of the free-energy table.
 
     Parameters
@@ -153,6 +158,9 @@ def build_table(pairs, dlogn=0.05, dlogT=0.05, fd_step=1e-2):
         Grid spacing in log10 n and log10 T (dex) over :data:`TABLE_RANGE`.
     fd_step : float, optional
         Step in v = ln T of the five-point differences for F_uuv, F_uvv, F_uuvv.
+    table_range : tuple of 4 floats, optional
+        (log10 n_min, log10 n_max, log10 T_min, log10 T_max) of the grid; :data:`ONSET_RANGE`
+        (with ``dlogT=0.01``) gives the fine pair table of the pair onset.
 
     Returns
     -------
@@ -183,7 +191,11 @@ def build_table(pairs, dlogn=0.05, dlogT=0.05, fd_step=1e-2):
     for name, val in (("dlogn", dlogn), ("dlogT", dlogT), ("fd_step", fd_step)):
         if not (np.isfinite(val) and val > 0):
             raise ValueError(f"{name} must be a positive number, got {val!r}")
-    u, v = _grid(dlogn, dlogT)
+    ln0, ln1, lt0, lt1 = table_range
+    if not (ln0 < ln1 and lt0 < lt1):
+        raise ValueError(f"table_range must be (log n_min, log n_max, log T_min, log T_max) "
+                         f"with min < max, got {table_range!r}")
+    u, v = _grid(dlogn, dlogT, table_range)
     U, V = np.meshgrid(u, v, indexing="ij")
     n, T = np.exp(U).ravel(), np.exp(V).ravel()
     s, Fu, Fuu, Fuv = _node_quantities(n, T, pairs)
@@ -293,7 +305,7 @@ class _Table:
         return i * (self.nv - 1) + j, j, x - i, y - j
 
 
-@functools.lru_cache(maxsize=2)
+@functools.lru_cache(maxsize=3)
 def _table(pairs):
     path = _DATA / _FILES[pairs]
     if not path.exists():

@@ -30,8 +30,11 @@ the ionization jump). We therefore use a rule of our own in that spirit:
 
     ln w_j = -D_j b(s) / (1 - b(s)),   D_j = (C_Z - C_j)/kT + (Z - j) (softplus(eta) + 12),
 
-with s = (4 pi / 3) n_e,full a_0^3 the packing fraction of Bohr spheres at
-the electron density of fully ionized matter and b(s) a smooth step
+with s = (4 pi / 3) n_e,full a_0^3 + (T / 1.35e8 K)^4: the packing fraction of
+Bohr spheres at the electron density of fully ionized matter, plus a thermal
+term (our own) that completes the ionization above ~2e8 K, where the
+ground-state-only Saha equation would otherwise recombine hydrogen in the
+dense electron–positron plasma (kT >> chi there). b(s) is a smooth step
 (infinitely differentiable) rising from 0 at s <= 0.3 to 1 at s >= 1.8
 (rho ~ 0.8–10 g cm^-3 depending on the composition). D_j is the depth at
 which the fully ionized stage outweighs stage j by e^12 per missing electron
@@ -120,6 +123,8 @@ S_ONSET = 0.3
 S_COMPLETE = 1.8
 #: Margin (per missing electron, in ln) by which full ionization wins once b = 1.
 MARGIN = 12.0
+#: Temperature scale of the thermal term of the destruction parameter (s grows as (T / this)^4).
+THERMAL_DESTRUCTION_T = 1.35e8
 #: ln w of a destroyed state: exp() gives exactly 0, quietly, whatever eta is.
 _DESTROYED = -1.0e300
 
@@ -175,16 +180,23 @@ def ionization_stages(element: Element, eta: np.ndarray, T: np.ndarray, n_e_full
     n_stages = Z + 1
     shape = np.broadcast(eta, T, n_e_full).shape
     if pressure_ionization:
-        s = (4.0 * np.pi / 3.0) * n_e_full * BOHR_RADIUS**3
-        b, db_dln = _smooth_step(s)
+        # packing of Bohr spheres, plus a thermal term that completes ionization above ~2e8 K, where
+        # the ground-state-only Saha equation would recombine H in the dense electron-positron plasma
+        s_rho = (4.0 * np.pi / 3.0) * n_e_full * BOHR_RADIUS**3
+        s_T = (T / THERMAL_DESTRUCTION_T) ** 4
+        s = s_rho + s_T
+        b, db_dlns = _smooth_step(s)
+        db_dln = db_dlns * s_rho / s               # d b / d ln rho
+        db_dlnT = db_dlns * 4.0 * s_T / s          # d b / d ln T
     else:
-        b = db_dln = np.zeros(shape)
+        b = db_dln = db_dlnT = np.zeros(shape)
     sp, dsp = _softplus(eta)
     # g = b / (1 - b) runs from 0 to infinity across the band: beyond it the bound states are gone
     gone = b >= 1.0 - 1e-12
     one_minus = np.where(gone, 1.0, 1.0 - b)
     g = np.where(gone, 0.0, b / one_minus)
     dg_dln = np.where(gone, 0.0, db_dln / one_minus**2)
+    dg_dlnT = np.where(gone, 0.0, db_dlnT / one_minus**2)
     zero = np.zeros(shape)
     ln_q, ln_w, w_eta, w_T, w_ln = [], [], [], [], []
     for j in range(n_stages):
@@ -194,7 +206,7 @@ def ionization_stages(element: Element, eta: np.ndarray, T: np.ndarray, n_e_full
             depth = (C[Z] - C[j]) / kT + (Z - j) * (sp + MARGIN)
             ln_w.append(np.where(gone, _DESTROYED, -g * depth))
             w_eta.append(-g * (Z - j) * dsp)
-            w_T.append(g * (C[Z] - C[j]) / (kT * T))
+            w_T.append(g * (C[Z] - C[j]) / (kT * T) - dg_dlnT * depth / T)
             w_ln.append(-dg_dln * depth)
         ln_q.append(np.log(element.weights[j]) + ln_w[j] - j * eta - C[j] / kT)
     top = np.maximum.reduce(ln_q)

@@ -168,3 +168,10 @@ def test_pressure_increases_with_density_and_temperature(log_rho, log_T, X):
 def test_bad_input(rho, T, fragment):
     with pytest.raises(ValueError, match=fragment):
         ph.evaluate(rho, T, SUN_LIKE)
+
+
+def test_hot_matter_stays_ionized_in_the_pair_plasma():
+    # kT >> chi: H and He are fully ionized above a few 1e8 K at any density (common practice, no source);
+    # ground-state Saha alone would recombine H where the pair plasma makes exp(-eta) of order 1
+    s = ph.evaluate(np.logspace(-12, 6, 19)[None, :], np.logspace(8.5, 11, 11)[:, None], SUN_LIKE)
+    assert s.ion_H.min() > 0.999 and s.ion_He2.min() > 0.999
