@@ -107,11 +107,70 @@ def cmd_map(args) -> int:
     return 0
 
 
+def _fmt_age(value) -> str:
+    return "-" if value is None else f"{value:.6g}"
+
+
+def cmd_track(args) -> int:
+    from . import tracks, upload
+    comp = _composition(args)
+    opts = _physics_options(args)
+    max_bytes = int(args.max_mb * 1024 * 1024)
+    with open(args.file, "rb") as fh:
+        data = fh.read(max_bytes + 1)             # never read more than the limit (plus one byte to tell)
+    df = upload.read_table(data, args.file, max_bytes=max_bytes)
+    mapping = upload.detect_columns(df)
+    if args.rho_col is not None:
+        mapping.rho_col = args.rho_col
+    if args.T_col is not None:
+        mapping.T_col = args.T_col
+    if args.scale is not None:
+        mapping.rho_log = mapping.T_log = args.scale == "log"
+    if args.units is not None:
+        mapping.units = args.units
+    if args.age_col is not None:
+        mapping.age_col = args.age_col or None
+    if mapping.rho_col is None or mapping.T_col is None:
+        notes = "; ".join(mapping.ambiguous) or "no density or temperature column found"
+        raise CliError(f"{notes}; give --rho-col and --T-col (columns: {', '.join(map(str, df.columns))})")
+    enriched, crossings, track = tracks.enrich(df, mapping, comp, **opts)
+    records = tracks.crossing_records(crossings)
+    if args.output:
+        with open(args.output, "w", encoding="utf-8", newline="") as fh:
+            fh.write(tracks.safe_csv(enriched))
+    if args.json:
+        out = {"rows": len(df), "bad_rows": [int(i) for i in track.bad_rows],
+               "crossings": [{k: r[k] for k in ("boundary", "row", "log_rho", "log_T", "age")} for r in records]}
+        print(json.dumps(out, indent=2))
+    else:
+        print(f"{args.file}: {len(df)} rows, {len(track.bad_rows)} bad; density {mapping.rho_col!r} "
+              f"({'log10' if mapping.rho_log else 'linear'}, {mapping.units}), temperature {mapping.T_col!r} "
+              f"({'log10' if mapping.T_log else 'linear'}, K), age {mapping.age_col or 'row number'!r}")
+        print(f"composition: {comp!r}")
+        for note in mapping.ambiguous:
+            print(f"note: {note}")
+        for i in track.bad_rows[:10]:
+            print(f"bad row {i}: {track.bad_reasons[i]}")
+        if len(track.bad_rows) > 10:
+            print(f"... and {len(track.bad_rows) - 10} more bad rows")
+        if not records:
+            print("no boundary crossed")
+        else:
+            print(f"{len(records)} crossing(s):")
+            print(f"  {'boundary':<36} {'rows':>13} {'log rho':>9} {'log T':>8} {'age':>12}")
+            for r in records:
+                rows = f"{r['row']}-{r['row_after']}"
+                print(f"  {r['label']:<36} {rows:>13} {r['log_rho']:>9.4f} {r['log_T']:>8.4f} {_fmt_age(r['age']):>12}")
+        if args.output:
+            print(f"wrote {args.output}", file=sys.stderr)
+    return 0
+
+
 def build_parser() -> argparse.ArgumentParser:
     parser = _Parser(
         prog="thermoplane",
         description="The density-temperature plane of stellar matter: a dashboard and command-line answers.")
-    sub = parser.add_subparsers(dest="command", metavar="{serve,point,map}")
+    sub = parser.add_subparsers(dest="command", metavar="{serve,point,track,map}")
 
     p = sub.add_parser("serve", help="start the dashboard", description="Start the dashboard in this process.")
     p.add_argument("--host", default="127.0.0.1",
@@ -128,6 +187,30 @@ def build_parser() -> argparse.ArgumentParser:
     _add_physics(p)
     p.add_argument("--json", action="store_true", help="print JSON instead of a table")
     p.set_defaults(func=cmd_point)
+
+    p = sub.add_parser("track", help="evaluate a track table and report the boundaries it crosses",
+                       description="Read a track table (CSV, TSV, semicolon or whitespace separated, gzip too), "
+                                   "add P, P_gas, P_rad, beta, eta, gamma1, nabla_ad and the regime to every "
+                                   "row, and list where the track crosses each regime boundary.")
+    p.add_argument("file", help="the table: a header row, then one row per model or layer")
+    p.add_argument("--rho-col", dest="rho_col", help="density column (default: detected from the names)")
+    p.add_argument("--T-col", dest="T_col", help="temperature column (default: detected from the names)")
+    scale = p.add_mutually_exclusive_group()
+    scale.add_argument("--log", dest="scale", action="store_const", const="log",
+                       help="both columns hold log10 values (default: detected)")
+    scale.add_argument("--linear", dest="scale", action="store_const", const="linear",
+                       help="both columns hold linear values (default: detected)")
+    p.add_argument("--units", choices=("cgs", "si"), help="density in g cm^-3 (cgs) or kg m^-3 (si); "
+                                                          "default: detected, else cgs")
+    p.add_argument("--age-col", dest="age_col", help="age or model-number column (default: detected; "
+                                                     "'' for the row number)")
+    _add_composition(p)
+    _add_physics(p)
+    p.add_argument("-o", "--output", help="write the table with the computed columns to this CSV file")
+    p.add_argument("--json", action="store_true", help="print the rows, bad rows and crossings as JSON")
+    p.add_argument("--max-mb", dest="max_mb", type=_positive_float, default=25.0,
+                   help="largest accepted file in MB, raw or decompressed (default 25)")
+    p.set_defaults(func=cmd_track)
 
     p = sub.add_parser("map", help="write the map as a standalone interactive HTML figure",
                        description="Write the density-temperature map as one HTML file that opens offline.")

@@ -7,7 +7,8 @@ from dataclasses import dataclass, field
 import numpy as np
 import plotly.graph_objects as go
 
-__all__ = ["Line", "plane_figure", "place_labels", "graph_config", "LINE_STYLES", "COLOR_SCALES"]
+__all__ = ["Line", "plane_figure", "place_labels", "graph_config", "LINE_STYLES", "COLOR_SCALES",
+           "track_traces", "track_quantity_figure", "empty_figure", "TRACK_PARAMETER_SCALE"]
 
 #: Colour scales offered for the shading: perceptually uniform sequential
 #: scales and colour-blind-safe diverging scales (plotly's built-in names).
@@ -215,3 +216,112 @@ def graph_config(filename: str = "thermoplane-map", scale: int = 3) -> dict:
     return {"displaylogo": False, "responsive": True,
             "toImageButtonOptions": {"format": "png", "filename": filename, "scale": scale},
             "modeBarButtonsToRemove": ["lasso2d", "select2d"]}
+
+
+# ----------------------------------------------------------------------------
+# stellar tracks
+# ----------------------------------------------------------------------------
+#: Colour scale for a track coloured by its parameter (perceptually uniform,
+#: readable by colour-blind viewers; Nuñez, Anderton & Renslow 2018, PLoS ONE 13, e0199239).
+TRACK_PARAMETER_SCALE = "Cividis"
+
+
+def track_traces(track_id: str, name: str, colour: str, d: dict, *, colour_by: bool = False) -> list[go.Scatter]:
+    """Traces of one track over the map: a white halo, the line, start and end, crossings.
+
+    Parameters
+    ----------
+    track_id, name, colour
+        The track's id (in each trace's ``meta``: ``track:ID``), legend name and line colour.
+    d : dict
+        ``x``, ``y`` (log rho, log T; NaN on rows not evaluated), ``row``,
+        ``age`` (or None), ``regime`` (words), ``beta``, ``eta`` per drawn
+        point; ``crossings`` (records with label, row, row_after, log_rho,
+        log_T, age); ``age_name`` (the parameter's column, or None).
+    colour_by : bool
+        Colour the points by the parameter (age, else row) with a colour bar
+        (beside the map's own; one track at a time).
+    """
+    x = np.asarray(d["x"], dtype=float)
+    y = np.asarray(d["y"], dtype=float)
+    row = np.asarray(d["row"])
+    age = d.get("age")
+    has_age = age is not None
+    age = np.asarray(age, dtype=float) if has_age else row.astype(float)
+    custom = np.empty((x.size, 6), dtype=object)
+    custom[:, 0] = row
+    custom[:, 1] = np.where(np.isfinite(age), np.char.mod("%.5g", np.nan_to_num(age)), "—")
+    with np.errstate(invalid="ignore"):
+        custom[:, 2] = np.char.mod("%.4g", 10.0 ** np.nan_to_num(x))
+        custom[:, 3] = np.char.mod("%.4g", 10.0 ** np.nan_to_num(y))
+    custom[:, 4] = d["regime"]
+    custom[:, 5] = [f"β = {b:.4f}, η = {e:.3g}" if np.isfinite(b) else "not evaluated"
+                    for b, e in zip(np.asarray(d["beta"], float), np.asarray(d["eta"], float))]
+    age_word = d.get("age_name") or "parameter"
+    hover = (f"<b>{name}</b><br>row %{{customdata[0]}}"
+             + (f", {age_word} = %{{customdata[1]}}" if has_age else "")
+             + "<br>ρ = %{customdata[2]} g cm⁻³, T = %{customdata[3]} K<br>%{customdata[4]}<br>%{customdata[5]}"
+             "<extra></extra>")
+    meta = f"track:{track_id}"
+    traces = [go.Scatter(x=x, y=y, mode="lines", line=dict(color="rgba(255,255,255,0.85)", width=6),
+                         hoverinfo="skip", showlegend=False, meta=meta + ":halo", connectgaps=False)]
+    line = dict(x=x, y=y, name=name, meta=meta, customdata=custom, hovertemplate=hover, connectgaps=False,
+                legendgroup=meta, showlegend=True)
+    if colour_by:
+        line.update(mode="lines+markers", line=dict(color=colour, width=1.5),
+                    marker=dict(size=5, color=age, colorscale=TRACK_PARAMETER_SCALE, showscale=True,
+                                colorbar=dict(title=dict(text=f"{name}: {age_word if has_age else 'row'}",
+                                                         side="right"),
+                                              x=1.13, len=0.7, thickness=12)))
+    else:
+        line.update(mode="lines", line=dict(color=colour, width=2.5))
+    traces.append(go.Scatter(**line))
+    ok = np.flatnonzero(np.isfinite(x) & np.isfinite(y))
+    if ok.size:
+        ends = [ok[0], ok[-1]]
+        traces.append(go.Scatter(
+            x=x[ends], y=y[ends], mode="markers+text", text=["start", "end"], textposition="top center",
+            textfont=dict(color=colour, size=12), legendgroup=meta, showlegend=False, meta=meta + ":ends",
+            marker=dict(symbol=["circle", "square"], size=11, color=colour, line=dict(color="white", width=2)),
+            hovertemplate=f"<b>{name}</b>: %{{text}} (row %{{customdata}})<extra></extra>",
+            customdata=row[ends]))
+    cr = d.get("crossings") or []
+    if cr:
+        traces.append(go.Scatter(
+            x=[c["log_rho"] for c in cr], y=[c["log_T"] for c in cr], mode="markers", legendgroup=meta,
+            showlegend=False, meta=meta + ":crossings",
+            marker=dict(symbol="diamond", size=9, color="white", line=dict(color=colour, width=2)),
+            customdata=[[c["label"], f"{c['row']}–{c['row_after']}",
+                         "" if c.get("age") is None else f", {age_word} = {c['age']:.5g}"] for c in cr],
+            hovertemplate=f"<b>{name}</b> crosses %{{customdata[0]}}<br>between rows %{{customdata[1]}}"
+                          "%{customdata[2]}<br>log ρ = %{x:.3f}, log T = %{y:.3f}<extra></extra>"))
+    return traces
+
+
+def empty_figure(message: str) -> go.Figure:
+    """A blank figure with a message in the middle (no axes)."""
+    fig = go.Figure()
+    fig.update_layout(xaxis=dict(visible=False), yaxis=dict(visible=False), plot_bgcolor="white",
+                      paper_bgcolor="white", margin=dict(l=20, r=20, t=20, b=20),
+                      annotations=[dict(text=message, showarrow=False, font=dict(size=14, color="#555"),
+                                        xref="paper", yref="paper", x=0.5, y=0.5)] if message else [])
+    return fig
+
+
+def track_quantity_figure(series, *, y_label: str, x_label: str, log_y: bool = False) -> go.Figure:
+    """A small plot of one quantity along each track: ``series`` = [(name, colour, x, y), ...]."""
+    if not series:
+        return empty_figure("No visible track")
+    fig = go.Figure()
+    for name, colour, x, y in series:
+        fig.add_trace(go.Scatter(x=np.asarray(x, float), y=np.asarray(y, float), mode="lines", name=name,
+                                 line=dict(color=colour, width=2), connectgaps=False,
+                                 hovertemplate=f"{name}<br>%{{x:.5g}}: %{{y:.5g}}<extra></extra>"))
+    axis = dict(showgrid=True, gridcolor="#e5e5e5", zeroline=False, ticks="outside", showline=True,
+                linecolor="#333", mirror=True)
+    fig.update_layout(xaxis=dict(title=x_label, **axis),
+                      yaxis=dict(title=y_label, type="log" if log_y else "linear", **axis),
+                      plot_bgcolor="white", paper_bgcolor="white", margin=dict(l=70, r=20, t=20, b=50),
+                      font=dict(size=13, family="Inter, Segoe UI, Helvetica, Arial, sans-serif"),
+                      legend=dict(orientation="h", yanchor="bottom", y=1.02, x=0), showlegend=len(series) > 1)
+    return fig

@@ -168,8 +168,15 @@ def share_panel() -> html.Section:
 
 
 def tracks_panel() -> html.Section:
-    """Place for stellar tracks (uploads are wired in separately)."""
-    return html.Section([html.H3("Tracks"), html.Div(id="tracks-body")], className="panel", id="panel-tracks")
+    """Stellar tracks: upload, column mapping, list (see app.callbacks.tracks)."""
+    from .callbacks.tracks import tracks_panel as panel
+    return panel()
+
+
+def tracks_results() -> html.Section:
+    """The selected track's crossings, a plot along the tracks, the enriched CSV."""
+    from .callbacks.tracks import tracks_results as results
+    return results()
 
 
 def about_physics() -> list:
@@ -234,6 +241,7 @@ def map_area() -> html.Div:
                               style={"height": "72vh", "minHeight": "480px"}),
                     type="circle", delay_show=250, id="plane-loading"),
         html.Div("Hover over the map to read a point.", id="hover-readout", className="readout hover"),
+        tracks_results(),
         point_panel(),
         about_panel(),
     ], className="main")

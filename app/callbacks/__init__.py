@@ -4,7 +4,7 @@ from __future__ import annotations
 
 
 def register_all(app) -> None:
-    from . import composition, export, point, share
+    from . import composition, export, point, share, tracks
     from . import map as map_panel
 
     share.register(app)
@@ -12,3 +12,4 @@ def register_all(app) -> None:
     map_panel.register(app)
     point.register(app)
     export.register(app)
+    tracks.register(app)

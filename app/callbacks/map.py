@@ -172,8 +172,23 @@ def _empty_messages() -> dict:
     return {m: "" for m in MESSAGES}
 
 
-def update_map(**controls) -> dict:
+def track_overlay(tracks_data, colour_by, comp, opts) -> list:
+    """Traces of the visible stellar tracks (app.callbacks.tracks), from its cache."""
+    if not tracks_data or not tracks_data.get("tracks"):
+        return []
+    from .tracks import overlay_traces
+    try:
+        return overlay_traces(tracks_data, comp, opts, colour_by)
+    except Exception:                                  # a track never takes the map down
+        log.exception("track overlay failed")
+        return []
+
+
+def update_map(tracks=None, track_colour_by=None, **controls) -> dict:
     """Callback body: control values (keyed like state.CONTROLS) -> outputs dict.
+
+    ``tracks`` is the tracks store (drawn over the map, so they survive every
+    redraw) and ``track_colour_by`` the "colour by parameter" choice.
 
     Outputs: "figure" (or no_update: the last good map stays), "readout",
     "view" (the checked view with its URL query, for sharing and export) and
@@ -184,7 +199,7 @@ def update_map(**controls) -> dict:
         view = controls_to_view(**controls)
         comp, opts, clean = parse_view(view)
         out["readout"] = readout(comp)
-        fig, grid, messages = build(comp, opts, clean)
+        fig, grid, messages = build(comp, opts, clean, track_overlay(tracks, track_colour_by, comp, opts))
         out.update(messages)
         out["figure"] = fig
         out["view"] = {"view": _jsonable(clean), "query": encode_view(clean)}
@@ -217,6 +232,8 @@ def register(app) -> None:
                "view": Output("view-store", "data"),
                **{m: Output(m, "children") for m in MESSAGES}}
     inputs = {k: Input(cid, prop) for k, (cid, prop) in CONTROLS.items()}
+    inputs["tracks"] = Input("tracks-store", "data")
+    inputs["track_colour_by"] = Input("tracks-colour-by", "value")
     app.callback(output=outputs, inputs=inputs)(update_map)
 
     # Hover readout, in the browser: value, (rho, T) and regime name of the pixel.
