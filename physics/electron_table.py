@@ -39,6 +39,14 @@ Node data come from :func:`physics.electrons.electron_state` (third and
 fourth derivatives by five-point central differences in v of the analytic
 F_uu and F_uv).  Outside the table the exact routine is called for those
 points only.
+
+At the pair onset (10^8–10^9.7 K) the positron density goes like exp(-2/theta),
+which changes by e^(2/theta dv) across a cell: three finer pair tables
+(:data:`ONSET_TABLES`, 0.002–0.01 dex in T) keep P, E and eta within 1e-6 of
+the exact gas there (:func:`onset_state`).  Evaluation runs in chunks of a few
+thousand points (the working arrays stay in cache): one gather of the 36
+coefficients of each point's cell, Horner in z_v then z_u for just the
+derivative orders needed; :func:`table_eta` forms only eta and deta/dn.
 """
 
 import argparse
@@ -51,19 +59,26 @@ import numpy as np
 from . import constants as const
 from .electrons import ElectronGas, ElectronState, _prepare, electron_gas, electron_state
 
-__all__ = ["table_state", "in_table", "build_table", "TABLE_RANGE"]
+__all__ = ["table_state", "table_eta", "onset_state", "in_table", "build_table", "TABLE_RANGE", "ONSET_TABLES"]
 
 _MC2 = const.m_e * const.c ** 2
 _K = const.k_B
 #: (log10 n_min, log10 n_max, log10 T_min, log10 T_max) of the table
 TABLE_RANGE = (4.0, 37.0, 3.0, 11.5)
-#: (log10 n_min, log10 n_max, log10 T_min, log10 T_max) of the fine pair table of the pair onset
-ONSET_RANGE = (4.0, 37.0, 8.2, 9.7)
-#: its spacing (dex) in log10 n and log10 T: e^(-2/theta) changes fast with T at the onset
-ONSET_SPACING = (0.05, 0.01)
+#: Fine pair tables of the pair onset: (name, (log10 n_min, log10 n_max, log10 T_min, log10 T_max),
+#: (dlogn, dlogT)).  The positron density there goes like e^(-2/theta), whose rate in ln T
+#: (2/theta ~ 30-120) sets the T spacing for <= 1e-6 relative errors in P, E, eta; each n range
+#: covers the densities at which positrons exceed 1e-10 of the net electrons (n < ~1e5 n_Q e^(-1/theta)).
+ONSET_TABLES = (
+    ("onset_a", (4.0, 24.0, 8.0, 8.4), (0.05, 0.002)),
+    ("onset_b", (4.0, 30.0, 8.4, 8.8), (0.05, 0.005)),
+    ("onset_c", (4.0, 35.0, 8.8, 9.7), (0.05, 0.01)),
+)
+#: five-point difference step in ln T of the onset tables (2/theta * step << 1)
+_ONSET_FD_STEP = 1e-3
 _DATA = Path(__file__).resolve().parent / "data"
 _FILES = {True: "electron_table_pairs.npz", False: "electron_table_nopairs.npz",
-          "onset": "electron_table_pair_onset.npz"}
+          **{name: f"electron_table_pair_{name}.npz" for name, _, _ in ONSET_TABLES}}
 _LN10 = np.log(10.0)
 #: below this zeta the expansions replace the subtractions P - P_0, S - S_0, ...
 _ZETA_SERIES = 1e-2
@@ -159,8 +174,8 @@ def build_table(pairs, dlogn=0.05, dlogT=0.05, fd_step=1e-2, table_range=TABLE_R
     fd_step : float, optional
         Step in v = ln T of the five-point differences for F_uuv, F_uvv, F_uuvv.
     table_range : tuple of 4 floats, optional
-        (log10 n_min, log10 n_max, log10 T_min, log10 T_max) of the grid; :data:`ONSET_RANGE`
-        (with ``dlogT=0.01``) gives the fine pair table of the pair onset.
+        (log10 n_min, log10 n_max, log10 T_min, log10 T_max) of the grid; a range of :data:`ONSET_TABLES`
+        (with the spacings of :data:`ONSET_TABLES`) gives a fine pair table of the pair onset.
 
     Returns
     -------
@@ -274,7 +289,9 @@ class _Table:
         # C[k, l] = sum_ab M[k, a] D[a, b] M[l, b]; stored as (cell, l, k) so that the
         # v-contraction reads contiguous rows
         C = np.einsum("ka,xyab,lb->xylk", _M5, D, _M5, optimize=True)
-        self.C = np.ascontiguousarray(C.reshape(-1, 6, 6))
+        # (36, cells), row 6 l + k: one take along axis 1 gathers every coefficient of a chunk
+        # of points, and each row of the gathered block is one contiguous coefficient array
+        self.CT = np.ascontiguousarray(C.reshape(-1, 36).T)
         F0 = data["F0"]
         self.m0 = (F0.shape[1] - 1) // (self.nv - 1)
         h0 = hv / self.m0
@@ -295,7 +312,7 @@ class _Table:
                         D3[:, :, 2 * ci + p, 2 * cj + q] = a[ci:ci + self.nu - 1, cj:cj + self.nv - 1]
             C3 = np.einsum("ka,xyab,lb->xylk", _M3, D3, _M3, optimize=True)
             # float32: n_plus is a display quantity, and half the bytes halve the gather
-            self.C3 = np.ascontiguousarray(C3.reshape(-1, 4, 4), dtype=np.float32)
+            self.C3T = np.ascontiguousarray(C3.reshape(-1, 16).T, dtype=np.float32)
 
     def locate(self, u, v):
         x = (u - self.u0) / self.hu
@@ -305,7 +322,7 @@ class _Table:
         return i * (self.nv - 1) + j, j, x - i, y - j
 
 
-@functools.lru_cache(maxsize=3)
+@functools.lru_cache(maxsize=len(_FILES))
 def _table(pairs):
     path = _DATA / _FILES[pairs]
     if not path.exists():
@@ -316,50 +333,104 @@ def _table(pairs):
 
 # ----------------------------------------------------------------------------- evaluation
 
-def _powers(z, deg):
-    """(N, 3, deg+1): rows z^k, d/dz z^k, d2/dz2 z^k."""
-    N = z.size
-    out = np.zeros((N, 3, deg + 1))
-    p = np.ones(N)
-    pw = [p]
-    for _ in range(deg):
-        p = p * z
-        pw.append(p)
-    for k in range(deg + 1):
-        out[:, 0, k] = pw[k]
-        if k >= 1:
-            out[:, 1, k] = k * pw[k - 1]
-        if k >= 2:
-            out[:, 2, k] = k * (k - 1) * pw[k - 2]
-    return out
+#: points per chunk of the Horner evaluation: the chunk's working arrays stay in cache
+_CHUNK = 8192
+
+
+def _horner_v(G, z, orders):
+    """v-contraction of gathered coefficients G (6[l], 6[k], m) at z: rows sum_l G[l] d^q z^l, q < orders."""
+    a = [G[5].copy()] + [np.zeros_like(G[5]) for _ in range(orders - 1)]
+    for l in range(4, -1, -1):
+        # simultaneous Horner for the polynomial and its derivatives (highest order first)
+        for q in range(orders - 1, 0, -1):
+            a[q] *= z
+            a[q] += q * a[q - 1] if q > 1 else a[q - 1]
+        a[0] *= z
+        a[0] += G[l]
+    return a
+
+
+def _horner_u(a, z, orders):
+    """u-contraction of rows a (6[k], m) at z: d^p/dz^p sum_k a[k] z^k for p < orders."""
+    r = [a[5].copy()] + [np.zeros_like(z) for _ in range(orders - 1)]
+    for k in range(4, -1, -1):
+        for p in range(orders - 1, 0, -1):
+            r[p] *= z
+            r[p] += p * r[p - 1] if p > 1 else r[p - 1]
+        r[0] *= z
+        r[0] += a[k]
+    return r
+
+
+def _interpolate(tab, u, v, light=False):
+    """Interpolated h and its derivatives on the unit cell, chunk by chunk.
+
+    Returns rows (G, G_u, G_uu, G_v, G_uv, G_vv) in cell units (light: G_u, G_uu only),
+    the ln n_plus interpolant (pairs tables, not light) and the cell data.
+    """
+    cell, j, zu, zv = tab.locate(u, v)
+    N = u.size
+    rows = 2 if light else 6
+    R = np.empty((rows, N))
+    L = np.empty(N) if (tab.pairs and not light) else None
+    for s in range(0, N, _CHUNK):
+        sl = slice(s, s + _CHUNK)
+        c, wu, wv = cell[sl], zu[sl], zv[sl]
+        G = np.take(tab.CT, c, axis=1).reshape(6, 6, -1)
+        if light:
+            a0 = _horner_v(G, wv, 1)[0]
+            _, R[0, sl], R[1, sl] = _horner_u(a0, wu, 3)
+            continue
+        a0, a1, a2 = _horner_v(G, wv, 3)
+        R[0, sl], R[1, sl], R[2, sl] = _horner_u(a0, wu, 3)
+        R[3, sl], R[4, sl] = _horner_u(a1, wu, 2)
+        R[5, sl] = _horner_u(a2, wu, 1)[0]
+        if L is not None:
+            G3 = np.take(tab.C3T, c, axis=1).reshape(4, 4, -1).astype(float)
+            b = G3[3].copy()
+            for l in (2, 1, 0):
+                b *= wv
+                b += G3[l]
+            t = b[3].copy()
+            for k in (2, 1, 0):
+                t *= wu
+                t += b[k]
+            L[sl] = t
+    return R, L
+
+
+def _eta_light(tab, n, T):
+    """eta and (deta/dn)_T only, by the same arithmetic as :func:`_evaluate` (bit-identical)."""
+    u, v = np.log(n), np.log(T)
+    R, _ = _interpolate(tab, u, v, light=True)
+    hu = tab.hu
+    Gu, Guu = R[0] / hu, R[1] / (hu * hu)
+    kT = _K * T
+    c0 = _rest_shift(v)[0] if tab.pairs else 0.0
+    return (Gu / n - c0) / kT, (Guu - Gu) / (n * n * kT)
 
 
 def _evaluate(tab, n, T):
     """ElectronState fields (flat) from the interpolant, all points inside the table."""
     u, v = np.log(n), np.log(T)
-    cell, j, zu, zv = tab.locate(u, v)
-    PU = _powers(zu, 5)                      # (N, 3, 6)
-    PV = _powers(zv, 5)
-    A = np.matmul(PV, tab.C[cell])           # (N, 3[q], 6[k]): v-contracted
-    R = np.matmul(A, np.ascontiguousarray(PU.transpose(0, 2, 1)))  # (N, 3[q], 3[p]) = d^p_u d^q_v G
+    R, L = _interpolate(tab, u, v)
     hu, hv = tab.hu, tab.hv
-    G, Gu, Guu = R[:, 0, 0], R[:, 0, 1] / hu, R[:, 0, 2] / (hu * hu)
-    Gv, Gvv, Guv = R[:, 1, 0] / hv, R[:, 2, 0] / (hv * hv), R[:, 1, 1] / (hu * hv)
-    # 1-D zero-charge part, depends on v only, on its finer grid
-    y0 = (v - tab.v0) / tab.h0
-    j0 = np.clip(np.floor(y0).astype(np.intp), 0, tab.C0.shape[0] - 1)
-    P0 = _powers(y0 - j0, 5)
-    c0 = tab.C0[j0]
-    h0 = tab.h0
-    F0 = np.einsum("nk,nk->n", c0, P0[:, 0])
-    F0v = np.einsum("nk,nk->n", c0, P0[:, 1]) / h0
-    F0vv = np.einsum("nk,nk->n", c0, P0[:, 2]) / (h0 * h0)
+    G, Gu, Guu = R[0], R[1] / hu, R[2] / (hu * hu)
+    Gv, Guv, Gvv = R[3] / hv, R[4] / (hu * hv), R[5] / (hv * hv)
     kT = _K * T
-    # with pairs the table holds h = g + c(T) n; the c terms restore g analytically, and
-    # the differences below are arranged so that they cancel exactly where they should
     if tab.pairs:
+        # 1-D zero-charge part, depends on v only, on its finer grid
+        y0 = (v - tab.v0) / tab.h0
+        j0 = np.clip(np.floor(y0).astype(np.intp), 0, tab.C0.shape[0] - 1)
+        h0 = tab.h0
+        F0, F0v, F0vv = _horner_u(tab.C0[j0].T, y0 - j0, 3)
+        F0v /= h0
+        F0vv /= h0 * h0
+        # the table holds h = g + c(T) n; the c terms restore g analytically, and
+        # the differences below are arranged so that they cancel exactly where they should
         c0, c1, c2 = _rest_shift(v)
     else:
+        F0 = F0v = F0vv = 0.0
         c0 = c1 = c2 = 0.0
     eta = (Gu / n - c0) / kT
     P = (Gu - G) - F0
@@ -373,9 +444,6 @@ def _evaluate(tab, n, T):
     deta_dn = (Guu - Gu) / (n * n * kT)
     deta_dT = (Guv - Gu - (c1 - c0) * n) / (n * kT * T)
     if tab.pairs:
-        PL = _powers(zu, 3)[:, 0]
-        QL = _powers(zv, 3)[:, 0]
-        L = np.einsum("nl,nlk,nk->n", QL, tab.C3[cell].astype(float), PL)
         n_plus = np.exp(L)
         n_plus[L < -690.0] = 0.0             # the floor of the stored table
     else:
@@ -472,27 +540,131 @@ def table_state(n_net, T, pairs=True):
     if inside.all():
         st = _evaluate(_table(pairs), n, T)
     else:
-        parts = []
-        for mask, fun in ((inside, lambda a, b: _evaluate(_table(pairs), a, b)),
-                          (~inside, lambda a, b: electron_state(a, b, pairs))):
-            if mask.any():
-                parts.append((mask, fun(n[mask], T[mask])))
-        fields = {}
-        for name in ElectronGas._fields:
-            out = np.empty(n.size)
-            for mask, st_ in parts:
-                out[mask] = getattr(st_.gas, name)
-            fields[name] = out
-        rest = {}
-        for name in ElectronState._fields[1:]:
-            out = np.empty(n.size)
-            for mask, st_ in parts:
-                out[mask] = getattr(st_, name)
-            rest[name] = out
-        st = ElectronState(gas=ElectronGas(**fields), **rest)
+        st = _merge(n.size, [(inside, lambda a, b: _evaluate(_table(pairs), a, b)),
+                             (~inside, lambda a, b: electron_state(a, b, pairs))], n, T)
+    return _reshape(st, shape)
+
+
+def table_eta(n_net, T, pairs=True):
+    """Only eta and (deta/dn)_T of :func:`table_state`, at about half its cost (for root finding).
+
+    Parameters
+    ----------
+    n_net : array_like
+        Net electron density, cm^-3 (> 0).
+    T : array_like
+        Temperature, K (> 0).  Broadcasts against ``n_net``.
+    pairs : bool, optional
+        Include thermally created positrons.
+
+    Returns
+    -------
+    eta, deta_dn : ndarray
+        Bit-identical to ``table_state(n_net, T, pairs).eta`` and ``.deta_dn``.
+
+    Raises
+    ------
+    ValueError
+        If n_net or T is not finite and positive, or pairs is not a bool.
+
+    Notes
+    -----
+    eta = F_u/(n k T), (deta/dn)_T = (F_uu - F_u)/(n^2 k T): only the value in v of the
+    interpolant and its first two u-derivatives are formed.
+    """
+    if not isinstance(pairs, (bool, np.bool_)):
+        raise ValueError(f"pairs must be True or False, got {pairs!r}")
+    pairs = bool(pairs)
+    shape, n, T = _prepare(n_net, T)
+    inside = _inside(n, T)
+    if inside.all():
+        eta, deta_dn = _eta_light(_table(pairs), n, T)
+    else:
+        eta, deta_dn = np.empty(n.size), np.empty(n.size)
+        if inside.any():
+            eta[inside], deta_dn[inside] = _eta_light(_table(pairs), n[inside], T[inside])
+        out = ~inside
+        st = electron_state(n[out], T[out], pairs)
+        eta[out], deta_dn[out] = st.eta, st.deta_dn
+    return eta.reshape(shape), deta_dn.reshape(shape)
+
+
+def _reshape(st, shape):
     rs = lambda a: a.reshape(shape)  # noqa: E731
     return ElectronState(gas=ElectronGas(*[rs(a) for a in st.gas]),
                          **{k: rs(getattr(st, k)) for k in ElectronState._fields[1:]})
+
+
+def _merge(size, parts, n, T):
+    """One flat ElectronState from functions applied on disjoint masks covering all points."""
+    done = [(mask, fun(n[mask], T[mask])) for mask, fun in parts if mask.any()]
+    gas = {}
+    for name in ElectronGas._fields:
+        out = np.empty(size)
+        for mask, st_ in done:
+            out[mask] = getattr(st_.gas, name)
+        gas[name] = out
+    rest = {}
+    for name in ElectronState._fields[1:]:
+        out = np.empty(size)
+        for mask, st_ in done:
+            out[mask] = getattr(st_, name)
+        rest[name] = out
+    return ElectronState(gas=ElectronGas(**gas), **rest)
+
+
+def _onset_masks(n, T):
+    """Disjoint masks of the points inside each table of :data:`ONSET_TABLES` (T bands half-open)."""
+    ln, lt = np.log10(n), np.log10(T)
+    masks = []
+    for i, (name, (ln0, ln1, lt0, lt1), _) in enumerate(ONSET_TABLES):
+        top = (lt <= lt1) if i == len(ONSET_TABLES) - 1 else (lt < lt1)
+        masks.append((name, (ln >= ln0) & (ln <= ln1) & (lt >= lt0) & top))
+    return masks
+
+
+def onset_state(n_net, T):
+    """Electron–positron gas at the pair onset, from the fine pair tables of :data:`ONSET_TABLES`.
+
+    Parameters
+    ----------
+    n_net : array_like
+        Net electron density, cm^-3 (> 0).
+    T : array_like
+        Temperature, K (> 0).  Broadcasts against ``n_net``.
+
+    Returns
+    -------
+    ElectronState
+        As :func:`table_state` with pairs; within 1e-6 (relative; eta relative to max(|eta|, 1))
+        of :func:`physics.electrons.electron_state` in P, E and eta wherever positrons exceed
+        1e-10 of the net electrons (tests/physics/test_electron_table.py).  Points outside every
+        fine table go to the exact quadrature.
+
+    Raises
+    ------
+    ValueError
+        If n_net or T is not finite and positive.
+    FileNotFoundError
+        If a table file is missing (build it with ``python -m physics.electron_table --build``).
+
+    Notes
+    -----
+    Same free-energy interpolation as :func:`table_state` (Timmes & Swesty 2000), on grids
+    finer in T: the zero-charge pair gas varies like exp(-2/theta) in T.
+
+    References
+    ----------
+    Timmes, F. X. & Swesty, F. D. 2000, ApJS 126, 501.
+    """
+    shape, n, T = _prepare(n_net, T)
+    parts = []
+    rest = np.ones(n.size, dtype=bool)
+    for name, mask in _onset_masks(n, T):
+        parts.append((mask, lambda a, b, name=name: _evaluate(_table(name), a, b)))
+        rest &= ~mask
+    parts.append((rest, lambda a, b: electron_state(a, b, True)))
+    return _reshape(_merge(n.size, parts, n, T), shape)
 
 
 def main(argv=None):
@@ -502,16 +674,24 @@ def main(argv=None):
     ap.add_argument("--dlogn", type=float, default=0.05)
     ap.add_argument("--dlogT", type=float, default=0.05)
     ap.add_argument("--out", default=str(_DATA))
+    ap.add_argument("--only", choices=("main", "onset"), default=None,
+                    help="build only the two main tables or only the fine pair-onset tables")
     args = ap.parse_args(argv)
     if not args.build:
         ap.print_help()
         return 0
     out = Path(args.out)
     out.mkdir(parents=True, exist_ok=True)
-    for pairs in (True, False):
-        data = build_table(pairs, args.dlogn, args.dlogT)
-        np.savez_compressed(out / _FILES[pairs], **data)
-        print(f"wrote {out / _FILES[pairs]} ({(out / _FILES[pairs]).stat().st_size / 1e6:.1f} MB)")
+    jobs = []
+    if args.only != "onset":
+        jobs += [(pairs, dict(dlogn=args.dlogn, dlogT=args.dlogT)) for pairs in (True, False)]
+    if args.only != "main":
+        jobs += [(name, dict(dlogn=dn, dlogT=dT, fd_step=_ONSET_FD_STEP, table_range=rng))
+                 for name, rng, (dn, dT) in ONSET_TABLES]
+    for key, kw in jobs:
+        data = build_table(key is not False, **kw)
+        np.savez_compressed(out / _FILES[key], **data)
+        print(f"wrote {out / _FILES[key]} ({(out / _FILES[key]).stat().st_size / 1e6:.1f} MB)")
     _table.cache_clear()
     return 0
 

@@ -37,7 +37,7 @@ import numpy as np
 
 from . import constants as const
 from .composition import Composition
-from .electron_table import table_state
+from .electron_table import _merge, onset_state, table_eta, table_state
 from .electrons import _CN, ElectronGas, ElectronState, electron_state
 from .ionization import ELEMENTS, ionization_stages
 from .thermo import Part
@@ -90,28 +90,38 @@ def fermi_state(n, T, pairs: bool) -> ElectronState:
     """The Fermi–Dirac electron(–positron) gas at net density n and T, fast where it can be.
 
     Without pairs: the pair-free table (physics.electron_table). With pairs: the same table where
-    positrons are negligible (bound above), the pair table in the hot pair plasma, and the exact
-    quadrature (physics.electrons) in between, where the tabulated pair onset is not accurate enough.
+    positrons are negligible (bound above), the pair table in the hot pair plasma, and the fine
+    pair-onset tables (physics.electron_table.onset_state, exact quadrature outside them) in
+    between, where the main pair table is not accurate enough.
     Each point's values come from one consistent source.
     """
-    state = table_state(n, T, pairs=False)
     if not pairs:
-        return state
-    need = _positron_bound(state.eta, T) > NEGLIGIBLE_POSITRONS * n
+        return table_state(n, T, pairs=False)
+    # eta alone decides which points need positrons; the full state is formed once per point
+    eta0, _ = table_eta(n, T, pairs=False)
+    need = _positron_bound(eta0, T) > NEGLIGIBLE_POSITRONS * n
     if not np.any(need):
-        return state
+        return table_state(n, T, pairs=False)
     hot = need & (T >= 10.0**PAIR_TABLE_LOG_T)
     onset = need & ~hot
-    parts = [(hot, lambda nn, tt: table_state(nn, tt, pairs=True)),
-             (onset, lambda nn, tt: electron_state(nn, tt, pairs=True))]
-    fields = [np.array(a, copy=True) for a in state.gas] + [np.array(a, copy=True) for a in state[1:]]
-    for mask, fn in parts:
-        if np.any(mask):
-            sub = fn(n[mask], T[mask])
-            for dst, src in zip(fields, list(sub.gas) + list(sub[1:])):
-                dst[mask] = src
-    k = len(state.gas)
-    return ElectronState(ElectronGas(*fields[:k]), *fields[k:])
+    return _merge(n.size, [(~need, lambda nn, tt: table_state(nn, tt, pairs=False)),
+                           (hot, lambda nn, tt: table_state(nn, tt, pairs=True)),
+                           (onset, onset_state)], n, T)
+
+
+def _eta_at(n, T, electrons: str, pairs: bool):
+    """eta and (deta/dn)_T of :func:`electrons_at` (identical values), without the other fields."""
+    if electrons == "classical":
+        st = classical_state(n, T)
+        return st.eta, st.deta_dn
+    eta, deta_dn = table_eta(n, T, pairs=False)
+    if not pairs:
+        return eta, deta_dn
+    need = np.flatnonzero(_positron_bound(eta, T) > NEGLIGIBLE_POSITRONS * n)
+    if need.size:
+        st = fermi_state(n[need], T[need], pairs=True)
+        eta[need], deta_dn[need] = st.eta, st.deta_dn
+    return eta, deta_dn
 
 
 def electrons_at(n, T, electrons: str, pairs: bool) -> ElectronState:
@@ -174,11 +184,14 @@ def _solve_saha(n_full, rho, T, saha, fixed, electrons, pairs):
         if active.size == 0:
             break
         ya = y[active]
-        st_e = electrons_at(np.exp(ya), T[active], electrons, pairs)
-        st = _stages(saha, st_e.eta, T[active], n_full[active])
-        n_free, nf_eta, _, _ = _free_electrons(st, saha, fixed, rho[active])
+        eta, deta_dn = _eta_at(np.exp(ya), T[active], electrons, pairs)
+        st = _stages(saha, eta, T[active], n_full[active])
+        # n_free and its eta-partial only, in the arithmetic order of _free_electrons (same values)
+        ra = rho[active]
+        n_free = ra * (fixed + sum(saha[z] * st[z].mean_charge for z in saha))
+        nf_eta = ra * sum(saha[z] * sum(j * st[z].f_eta[j] for j in range(len(st[z].f))) for z in saha)
         phi = ya - np.log(n_free)
-        slope = 1.0 - nf_eta / n_free * st_e.deta_dn * np.exp(ya)
+        slope = 1.0 - nf_eta / n_free * deta_dn * np.exp(ya)
         done = np.abs(phi) < _NEWTON_TOL
         pos = phi > 0
         hi[active] = np.where(pos, ya, hi[active])

@@ -5,8 +5,9 @@ import numpy as np
 import pytest
 
 from physics import constants as const
-from physics.electron_table import in_table, table_state
+from physics.electron_table import ONSET_TABLES, in_table, onset_state, table_eta, table_state
 from physics.electrons import electron_state
+from physics.matter import NEGLIGIBLE_POSITRONS, PAIR_TABLE_LOG_T, _positron_bound
 
 NX = 8 * np.pi / 3 * (const.m_e * const.c / const.h) ** 3   # n at x_F = 1
 
@@ -112,3 +113,31 @@ def test_shape_and_broadcast():
 def test_bad_input(n, T, pairs):
     with pytest.raises(ValueError):
         table_state(n, T, pairs)
+
+
+def test_pair_onset_tables_against_exact_where_used():
+    # where fermi_state uses the fine onset tables (positrons above 1e-10 of n, T < 10^9.4 K, inside a
+    # table), P, E and eta within 1e-6 of the exact quadrature (reference: physics.electrons)
+    n, T = _random(12000, 4.0, 37.0, 7.9, PAIR_TABLE_LOG_T, 4)
+    need = _positron_bound(table_eta(n, T, pairs=False)[0], T) > NEGLIGIBLE_POSITRONS * n
+    n, T = n[need], T[need]
+    assert n.size > 5000
+    a, b = onset_state(n, T), electron_state(n, T)
+    assert _rel(a.gas.P, b.gas.P) < 1e-6
+    assert _rel(a.gas.E, b.gas.E) < 1e-6
+    assert _rel(a.eta, b.eta, np.maximum(np.abs(b.eta), 1.0)) < 1e-6
+    # every such point at and above 10^8 K lies inside one of the tables (none falls back)
+    lo = 10.0 ** min(r[2] for _, r, _ in ONSET_TABLES)
+    inside = np.zeros(n.size, bool)
+    for _, (ln0, ln1, lt0, lt1), _ in ONSET_TABLES:
+        inside |= (n >= 10**ln0) & (n <= 10**ln1) & (T >= 10**lt0) & (T <= 10**lt1)
+    assert inside[T >= lo].all()
+
+
+def test_table_eta_matches_table_state():
+    # the light evaluation is the same arithmetic: bit-identical (including the fallback outside)
+    n, T = _random(3000, 2.0, 38.0, 2.5, 11.6, 5)
+    for pairs in (True, False):
+        s = table_state(n, T, pairs)
+        eta, deta_dn = table_eta(n, T, pairs)
+        assert np.array_equal(eta, s.eta) and np.array_equal(deta_dn, s.deta_dn)
