@@ -19,7 +19,7 @@ from .regimes import REGIMES, check_count, check_range, classify_codes
 
 __all__ = ["PlaneGrid", "Quantity", "QUANTITIES", "plane_grid", "cache_info", "clear_cache",
            "evaluation_count", "CACHE_MB", "EPS_FLOOR", "BURNING_PROCESSES",
-           "LOG_RHO_LIMITS", "LOG_T_LIMITS", "RESOLUTION_LIMITS"]
+           "LOG_RHO_LIMITS", "LOG_T_LIMITS", "RESOLUTION_LIMITS", "LEVEL_FIELDS"]
 
 #: Upper bound of the plane cache, MiB of array data; least recently used maps go first.
 CACHE_MB = 256
@@ -33,6 +33,9 @@ BURNING_PROCESSES = ("pp", "cno", "triple_alpha", "carbon")
 LOG_RHO_LIMITS = (-15.0, 15.0)
 LOG_T_LIMITS = (2.0, 12.0)
 RESOLUTION_LIMITS = (10, 1000)
+
+#: Fields a plane holds for the lines drawn from it (physics.contours), not offered as shadings.
+LEVEL_FIELDS = ("ion_H", "ion_He2", "log_pair_fraction", "log_P")
 
 #: Number of physics evaluations done by :func:`plane_grid` (cache misses).
 EVALUATIONS = 0
@@ -169,6 +172,11 @@ def _compute(comp, lr, lt, n_rho, n_T, opts) -> PlaneGrid:
             "nabla_ad": s.nabla_ad,
             "log_Gamma": np.log10(s.Gamma),
             "mean_ionization": np.asarray(s.ye) / comp.ye,
+            # not shaded: the level fields of the lines drawn from the grid (physics.contours)
+            "ion_H": s.ion_H,
+            "ion_He2": s.ion_He2,
+            "log_pair_fraction": np.log10(np.maximum(s.n_plus / s.n_minus, 1e-300)),
+            "log_P": np.log10(s.P),
         }
     unavailable: list[str] = []
     try:

@@ -111,15 +111,14 @@ def _colours(q, choice: str):
     return scale, (q.centre if diverging else None)
 
 
-def overlay_lines(comp, view: dict, opts: dict) -> tuple[list, dict]:
+def overlay_lines(grid, comp, view: dict, opts: dict) -> tuple[list, dict]:
     """Every line the view asks for, and messages for the list fields that could not be read."""
-    lr, lt = tuple(view["log_rho"]), tuple(view["log_T"])
-    lines = layers.boundary_lines(comp, lr, lt, opts, set(view["layers"]))
+    lines = layers.boundary_lines(grid, comp, opts, set(view["layers"]))
     messages = {}
     if view.get("ignition") and view.get("processes"):
         try:
             levels = parse_number_list(view.get("levels"), "ε levels")
-            lines += layers.ignition_lines(comp, view["processes"], levels, lr, lt)
+            lines += layers.ignition_lines(grid, view["processes"], levels)
         except ValueError as err:
             messages["map-levels-message"] = str(err)
     if view.get("mass_lines"):
@@ -127,7 +126,7 @@ def overlay_lines(comp, view: dict, opts: dict) -> tuple[list, dict]:
             masses = parse_number_list(view.get("masses"), "masses")
             if any(m > 1e4 or m < 1e-3 for m in masses):
                 raise ValueError("masses must be between 0.001 and 10000 M☉")
-            lines += layers.mass_lines(comp, masses, lr, opts)
+            lines += layers.mass_lines(grid, masses)
         except ValueError as err:
             messages["map-masses-message"] = str(err)
     return lines, messages
@@ -138,7 +137,7 @@ def build(comp, opts: dict, view: dict, extra_traces=()):
     n = int(view["resolution"])
     grid = plane.plane_grid(comp, tuple(view["log_rho"]), tuple(view["log_T"]), n, n, **opts)
     q = quantity(view["quantity"])
-    lines, messages = overlay_lines(comp, view, opts)
+    lines, messages = overlay_lines(grid, comp, view, opts)
     common = dict(lines=lines, presentation=bool(view.get("presentation")), customdata=grid.regime,
                   extra_traces=extra_traces)
     if q.categorical:

@@ -241,6 +241,13 @@ def test_spreadsheet_safe():
     assert export.spreadsheet_safe(-1.5) == -1.5 and export.spreadsheet_safe("ideal_gas") == "ideal_gas"
 
 
-def test_layer_caches_are_bounded():
-    for f in (layers._boundaries, layers._ignition, layers._central):
-        assert f.cache_info().maxsize is not None
+def test_lines_are_read_off_the_cached_plane_without_physics(monkeypatch):
+    from physics import eos, plane
+    comp = ph.Composition.from_xyz(0.7, 0.28, 0.02)
+    grid = plane.plane_grid(comp, (-10, 10), (3, 10), 60, 60, electrons="classical", ionization="full",
+                            coulomb=False, pairs=False)
+    monkeypatch.setattr(eos, "evaluate", lambda *a, **k: pytest.fail("lines must not call the EOS"))
+    opts = dict(electrons="classical", ionization="full", coulomb=False, pairs=False)
+    keys = {line.key for line in layers.boundary_lines(grid, comp, opts, {"equality", "degeneracy"})}
+    assert keys == {"equality", "degeneracy"}
+    assert layers.mass_lines(grid, [1.0]) and layers.ignition_lines(grid, ["pp"], [1.0])

@@ -25,7 +25,8 @@ def test_shapes_and_metadata():
     assert g.log_rho.shape == (30,) and g.log_T.shape == (20,)
     assert g.regime.shape == (20, 30) and g.regime.dtype == np.int8
     names = {q.name for q in plane.QUANTITIES}
-    assert set(g.fields) | {"regime"} == names
+    assert names <= set(g.fields) | {"regime"}
+    assert set(g.fields) - names == set(plane.LEVEL_FIELDS)        # fields only the lines use
     for name, arr in g.fields.items():
         assert arr.shape == (20, 30) and arr.dtype == np.float32, name
     assert g.log_rho[0] == -10 and g.log_rho[-1] == 10 and g.log_T[0] == 3 and g.log_T[-1] == 10

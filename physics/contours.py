@@ -1,0 +1,122 @@
+"""Lines of constant value read off an evaluated plane, with no further physics.
+
+The question this module answers: given a :class:`~physics.plane.PlaneGrid`
+already computed for a map, where do the regime boundaries, the ignition
+contours and the central lines of stars run on it? Every line is a level set
+of a field the grid holds, found column by column (or row by row for the
+nearly vertical x_F = 1 line) by linear interpolation between neighbouring
+pixels — vectorised over the whole grid. :func:`physics.regimes.boundaries`
+refines the same lines to 1e-6 dex with extra equation-of-state calls; the
+lines here are as fine as the map's pixels (a tenth of a pixel or better where
+the field is smooth), which is what a drawn map needs, at a cost of a few
+array passes.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+from . import constants as const
+from .regimes import (BOUNDARY_LABELS, COUPLING_GAMMA, CRYSTALLIZATION_GAMMA, DEGENERACY_ETA,
+                      HALF_IONIZATION, PAIR_ONSET, RELATIVISTIC_XF, _active_keys)
+
+__all__ = ["level_line", "grid_boundaries", "grid_ignition", "grid_mass_lines", "MAX_PIECES"]
+
+#: At most this many crossings per column are kept (pieces of one line).
+MAX_PIECES = 4
+
+# rho * ye / m_u at x_F = 1: (8 pi / 3) (m_e c / h)^3 (electrons per cm^3)
+_N_XF1 = 8.0 * np.pi / 3.0 * (const.m_e * const.c / const.h) ** 3
+
+
+def level_line(x: np.ndarray, y: np.ndarray, field: np.ndarray, level: float, along: str = "y"):
+    """Where ``field`` (shape (len(y), len(x))) crosses ``level``: a polyline per crossing rank.
+
+    Parameters
+    ----------
+    x, y : 1-D arrays
+        Axes of the grid (log rho, log T).
+    field : 2-D array
+        Values on the grid, rows along y.
+    level : float
+    along : {"y", "x"}
+        Scan each column along y (the line is a function of x) or each row along x.
+
+    Returns
+    -------
+    (xs, ys) : 1-D arrays
+        The k-th crossing of every column forms piece k; pieces are joined with NaN between them.
+        Empty arrays when the field never crosses the level.
+    """
+    D = np.asarray(field, dtype=float) - level
+    if along == "x":
+        ys, xs = level_line(y, x, D.T, 0.0, along="y")
+        return xs, ys
+    lo, hi = D[:-1], D[1:]
+    cross = np.isfinite(lo) & np.isfinite(hi) & ((lo < 0) != (hi < 0))
+    if not cross.any():
+        return np.array([]), np.array([])
+    rank = np.cumsum(cross, axis=0) - 1
+    i, j = np.nonzero(cross & (rank < MAX_PIECES))
+    w = lo[i, j] / (lo[i, j] - hi[i, j])
+    at = y[i] + w * (y[i + 1] - y[i])
+    pieces = np.full((MAX_PIECES, x.size), np.nan)
+    pieces[rank[i, j], j] = at
+    pieces = pieces[np.isfinite(pieces).any(axis=1)]
+    xs = np.concatenate([np.append(x, np.nan) for _ in pieces])
+    ys = np.concatenate([np.append(p, np.nan) for p in pieces])
+    return xs[:-1], ys[:-1]
+
+
+def grid_boundaries(grid, comp, keys=None, **physics_options):
+    """The regime boundaries on a computed plane: list of (key, label, log_rho, log_T).
+
+    Same keys, levels and labels as :func:`physics.regimes.boundaries`.
+    """
+    from .eos import validate_options
+    opts = validate_options(**physics_options)
+    active = _active_keys(comp, opts)
+    keys = active if keys is None else [k for k in active if k in keys]
+    x, y = grid.log_rho, grid.log_T
+    log_ye = np.log10(np.maximum(grid.get("mean_ionization") * comp.ye, 1e-300))
+    levels = {
+        "equality": (grid.get("log_prad_pgas"), 0.0, "y"),
+        "degeneracy": (grid.get("eta"), DEGENERACY_ETA, "y"),
+        "relativistic": (x[None, :] + log_ye, np.log10(_N_XF1 * const.m_u * RELATIVISTIC_XF**3), "x"),
+        "pairs": (grid.get("log_pair_fraction"), np.log10(PAIR_ONSET), "y"),
+        "coupling": (grid.get("log_Gamma"), np.log10(COUPLING_GAMMA), "y"),
+        "crystallization": (grid.get("log_Gamma"), np.log10(CRYSTALLIZATION_GAMMA), "y"),
+        "h_ionization": (grid.get("ion_H"), HALF_IONIZATION, "y"),
+        "he_ionization": (grid.get("ion_He2"), HALF_IONIZATION, "y"),
+    }
+    out = []
+    for key in keys:
+        field, level, along = levels[key]
+        xs, ys = level_line(x, y, np.broadcast_to(field, grid.shape), level, along=along)
+        out.append((key, BOUNDARY_LABELS[key], xs, ys))
+    return out
+
+
+def grid_ignition(grid, process: str, level: float):
+    """Where log10 epsilon of ``process`` equals log10 ``level`` on the plane: (log_rho, log_T)."""
+    return level_line(grid.log_rho, grid.log_T, grid.get(f"eps_{process}"), np.log10(level))
+
+
+def grid_mass_lines(grid, masses):
+    """Central lines of n = 3 polytropes read off the plane: P = W_3 G M^(2/3) rho^(4/3).
+
+    Returns a list of (mass, log_rho, log_T); the lowest-T crossing per column
+    (the same root as :func:`physics.structure.central_line`) forms the line.
+    """
+    from .structure import polytrope_constants
+    W3 = polytrope_constants(3).W_n
+    out = []
+    for m in masses:
+        need = np.log10(W3 * const.G * (m * const.M_sun) ** (2.0 / 3.0)) + (4.0 / 3.0) * grid.log_rho
+        xs, ys = level_line(grid.log_rho, grid.log_T, grid.get("log_P") - need[None, :], 0.0)
+        if xs.size:
+            first = np.flatnonzero(np.isnan(xs))
+            end = first[0] if first.size else xs.size
+            xs, ys = xs[:end], ys[:end]
+        out.append((m, xs, ys))
+    return out
