@@ -22,4 +22,5 @@ def create_app() -> dash.Dash:
     )
     app.layout = layout.build_layout
     register_all(app)
-    return app
+    from .security import harden
+    return harden(app)

@@ -141,9 +141,20 @@ def apply_rules(trigger, X, Y, Z, zauto, rows):
         return no_update, no_update, no_update, auto, no_update, str(err)
 
 
+def _clean_row(row: dict) -> dict:
+    """A table row as the table writes it: a nuclide name and a fraction (text or number)."""
+    def cell(v):
+        if v is None or isinstance(v, str):
+            return v
+        if isinstance(v, (int, float)) and not isinstance(v, bool) and abs(v) < 1e300:
+            return float(v)
+        return str(v)
+    return {"nuclide": cell(row.get("nuclide")), "fraction": cell(row.get("fraction"))}
+
+
 def add_mix_row(rows):
     """One more empty row in the nuclide table."""
-    rows = list(rows or [])
+    rows = [_clean_row(r) for r in rows if isinstance(r, dict)] if isinstance(rows, list) else []
     if len(rows) >= 30:
         return rows
     return rows + [{"nuclide": None, "fraction": None}]

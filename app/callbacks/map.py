@@ -212,9 +212,21 @@ def update_map(tracks=None, track_colour_by=None, **controls) -> dict:
     return out
 
 
+def _json_safe(v):
+    """Values a browser store can hold: huge integers and non-finite floats become text."""
+    if isinstance(v, bool) or v is None or isinstance(v, str):
+        return v
+    if isinstance(v, int):
+        return v if abs(v) < 2**53 else str(v)
+    if isinstance(v, float):
+        return v if np.isfinite(v) else str(v)
+    if isinstance(v, (list, tuple)):
+        return [_json_safe(x) for x in v]
+    return str(v)
+
+
 def _jsonable(view: dict) -> dict:
-    return {k: (list(map(list, v)) if k == "mix" else list(v) if isinstance(v, tuple) else v)
-            for k, v in view.items()}
+    return {k: _json_safe(v) for k, v in view.items()}
 
 
 def view_from_store(data) -> dict:

@@ -145,12 +145,17 @@ def tracks_results() -> html.Section:
 # store updates: plain functions
 # ----------------------------------------------------------------------------
 def _tracks(store) -> list[dict]:
-    return list((store or {}).get("tracks") or [])
+    """The tracks in a browser store; anything that is not a well-formed track is ignored."""
+    tracks = store.get("tracks") if isinstance(store, dict) else None
+    if not isinstance(tracks, list):
+        return []
+    return [t for t in tracks if isinstance(t, dict) and isinstance(t.get("id"), str)
+            and isinstance(t.get("colour"), str) and isinstance(t.get("name", ""), str)]
 
 
 def _find(store, tid):
     for t in _tracks(store):
-        if t["id"] == tid:
+        if t.get("id") == tid:
             return t
     return None
 
@@ -394,7 +399,9 @@ def tracks_callback(triggered, store, selected, controls: dict, contents, filena
     """
     out = {"store": no_update, "upload_message": no_update, "mapping_message": no_update,
            "contents": no_update}
-    old = store or {"tracks": [], "selected": None}
+    old = store if isinstance(store, dict) else {"tracks": [], "selected": None}
+    if not isinstance(old.get("selected"), (str, type(None))):
+        old = {**old, "selected": None}
     new = {"tracks": _tracks(old), "selected": selected if _find(old, selected) else old.get("selected")}
     ids = {str(i) if not isinstance(i, dict) else i.get("type") for i, _, _ in triggered}
     mapping_changed = False
