@@ -143,7 +143,9 @@ def plane_figure(log_rho: np.ndarray, log_T: np.ndarray, z: np.ndarray, *, z_lab
     """
     font = 20 if presentation else 13
     line_scale = 2.0 if presentation else 1.0
-    fig = go.Figure()
+    # traces and annotations are collected and handed to plotly once: adding them one at a time
+    # re-validates the growing lists (tens of ms per map)
+    traces, notes = [], []
     heat = dict(x=np.asarray(log_rho, dtype=np.float32), y=np.asarray(log_T, dtype=np.float32),
                 z=np.asarray(z, dtype=np.float32), zsmooth=False, name="map", meta="map")
     if categorical:
@@ -153,9 +155,9 @@ def plane_figure(log_rho: np.ndarray, log_T: np.ndarray, z: np.ndarray, *, z_lab
             scale += [[i / n, colour], [(i + 1) / n, colour]]
         heat.update(colorscale=scale, zmin=-0.5, zmax=n - 0.5, showscale=False)
         for label, colour in categorical:        # legend entries for the categories
-            fig.add_trace(go.Scatter(x=[None], y=[None], mode="markers", name=label,
-                                     marker=dict(size=18 if presentation else 14, color=colour, symbol="square"),
-                                     showlegend=True, hoverinfo="skip"))
+            traces.append(dict(type="scatter", x=[None], y=[None], mode="markers", name=label,
+                               marker=dict(size=18 if presentation else 14, color=colour, symbol="square"),
+                               showlegend=True, hoverinfo="skip"))
     else:
         heat.update(colorscale=colorscale,
                     colorbar=dict(title=dict(text=z_label, side="right"), thickness=22 if presentation else 16))
@@ -172,7 +174,7 @@ def plane_figure(log_rho: np.ndarray, log_T: np.ndarray, z: np.ndarray, *, z_lab
     else:
         heat.update(hovertemplate="log ρ = %{x:.2f}<br>log T = %{y:.2f}<br>"
                     + z_label + " = %{z:.4g}<extra></extra>")
-    fig.add_trace(go.Heatmap(**heat))
+    traces.append(dict(type="heatmap", **heat))
 
     x_range = (float(np.min(log_rho)), float(np.max(log_rho)))
     y_range = (float(np.min(log_T)), float(np.max(log_T)))
@@ -181,17 +183,17 @@ def plane_figure(log_rho: np.ndarray, log_T: np.ndarray, z: np.ndarray, *, z_lab
         colour, dash = LINE_STYLES.get(line.style or line.key, ("#111111", "solid"))
         x = np.asarray(line.log_rho, dtype=float)
         y = np.asarray(line.log_T, dtype=float)
-        fig.add_trace(go.Scatter(x=x, y=y, mode="lines", name=line.label, connectgaps=False,
-                                 line=dict(color=colour, dash=dash, width=line.width * line_scale),
-                                 hovertemplate=line.label + "<br>log ρ = %{x:.2f}, log T = %{y:.2f}<extra></extra>",
-                                 showlegend=False, meta=line.key))
+        traces.append(dict(type="scatter", x=x, y=y, mode="lines", name=line.label, connectgaps=False,
+                           line=dict(color=colour, dash=dash, width=line.width * line_scale),
+                           hovertemplate=line.label + "<br>log ρ = %{x:.2f}, log T = %{y:.2f}<extra></extra>",
+                           showlegend=False, meta=line.key))
         if where is not None:
-            fig.add_annotation(x=where[0], y=where[1], text=line.label, showarrow=False,
-                               font=dict(size=font - 1, color=colour),
-                               bgcolor="rgba(255,255,255,0.85)", bordercolor=colour, borderwidth=1,
-                               borderpad=2, yshift=12, name=f"label:{line.key}")
-    for trace in extra_traces:
-        fig.add_trace(trace)
+            notes.append(dict(x=where[0], y=where[1], text=line.label, showarrow=False,
+                              font=dict(size=font - 1, color=colour),
+                              bgcolor="rgba(255,255,255,0.85)", bordercolor=colour, borderwidth=1,
+                              borderpad=2, yshift=12, name=f"label:{line.key}"))
+    traces.extend(extra_traces)
+    fig = go.Figure(data=traces, layout=dict(annotations=notes))
     axis = dict(showgrid=False, zeroline=False, ticks="outside", mirror=True, showline=True,
                 linecolor="#000" if presentation else "#333", linewidth=2 if presentation else 1)
     fig.update_layout(

@@ -40,7 +40,10 @@ def map_request(app, values: dict, changed: str) -> dict:
         cid, prop = part.rsplit(".", 1)
         outputs.append({"id": cid, "property": prop})
     by_id = {(cid, prop): name for name, (cid, prop) in CONTROLS.items()}
-    inputs = [{"id": i["id"], "property": i["property"], "value": values[by_id[(i["id"], i["property"])]]}
+    extra = {("tracks-store", "data"): None, ("tracks-colour-by", "value"): None}   # no tracks loaded
+    inputs = [{"id": i["id"], "property": i["property"],
+               "value": values[by_id[(i["id"], i["property"])]] if (i["id"], i["property"]) in by_id
+               else extra[(i["id"], i["property"])]}
               for i in spec["inputs"]]
     return {"output": key, "outputs": outputs, "inputs": inputs, "changedPropIds": [changed], "state": []}
 
