@@ -148,8 +148,15 @@ def build(comp, opts: dict, view: dict, extra_traces=()):
         z = grid.get(q.name)
         if not np.any(np.isfinite(z)):
             messages["map-message"] = f"{q.label} is not available for this plane (no value anywhere in view)"
+        z_range = None
+        if mid is not None and np.any(np.isfinite(z)):
+            # symmetric about the centre and clipped to where most of the map lies, so the colours
+            # still separate near the centre (log P_rad/P_gas spans 60 dex across the default plane)
+            half = float(np.nanpercentile(np.abs(z - mid), 90))
+            half = max(half, 1e-6)
+            z_range = (mid - half, mid + half)
         fig = figures.plane_figure(grid.log_rho, grid.log_T, z, z_label=q.label, colorscale=scale,
-                                   z_mid=mid, **common)
+                                   z_mid=mid, z_range=z_range, **common)
     return fig, grid, messages
 
 
