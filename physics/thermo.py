@@ -1,6 +1,6 @@
 """Thermodynamic bookkeeping shared by every part of the equation of state.
 
-Each physical part (radiation, ions, electrons, Coulomb, ionization) returns a
+Each physical part (radiation, matter from physics.matter, Coulomb) returns a
 :class:`Part`: pressure, specific energy and specific entropy with their
 partial derivatives in rho and T. Parts add; the response functions
 (chi_rho, chi_T, c_V, Gamma_1, nabla_ad, ...) follow from the sum in one place,
@@ -13,7 +13,7 @@ from dataclasses import dataclass, fields
 
 import numpy as np
 
-__all__ = ["Part", "response", "radiation", "ideal_ions"]
+__all__ = ["Part", "response", "radiation"]
 
 
 @dataclass
@@ -35,11 +35,6 @@ class Part:
 
     def __add__(self, other: "Part") -> "Part":
         return Part(*(getattr(self, f.name) + getattr(other, f.name) for f in fields(self)))
-
-    @classmethod
-    def zero(cls, shape) -> "Part":
-        z = np.zeros(shape)
-        return cls(*(z for _ in fields(cls)))
 
 
 def response(total: Part, rho: np.ndarray, T: np.ndarray) -> dict[str, np.ndarray]:
@@ -84,28 +79,3 @@ def radiation(rho: np.ndarray, T: np.ndarray, a_rad: float) -> Part:
                 P_rho=np.zeros_like(rho * T), P_T=4.0 * aT3 / 3.0,
                 E_rho=-aT4 / rho**2, E_T=4.0 * aT3 / rho,
                 S_rho=-4.0 * aT3 / (3.0 * rho**2), S_T=4.0 * a_rad * T**2 / rho)
-
-
-def ideal_ions(rho: np.ndarray, T: np.ndarray, X: np.ndarray, A: np.ndarray,
-               k_B: float, m_u: float, h: float) -> Part:
-    """Classical ideal gas of nuclei (Maxwell–Boltzmann, Sackur–Tetrode entropy).
-
-    Notes
-    -----
-    P = n_ion k T, E = (3/2) n_ion k T / rho and, per nuclide i with number
-    density n_i and mass m_i = A_i m_u,
-    S = sum_i (n_i k / rho) [5/2 + ln((2 pi m_i k T / h^2)^{3/2} / n_i)]
-    (Sackur 1911, Tetrode 1912). Nuclear spin weights are left out: they add
-    a constant to S and change no derivative.
-    """
-    per_mass = X / (A * m_u)                     # nuclei per gram of each nuclide
-    N = float(np.sum(per_mass))                  # nuclei per gram, 1/(mu_ion m_u)
-    kT = k_B * T
-    P = rho * N * kT
-    E = 1.5 * N * kT
-    # sum_i N_i [5/2 + ln(q_i / n_i)], q_i = (2 pi A_i m_u k T/h^2)^(3/2); split so T, rho stay arrays
-    const = float(np.sum(per_mass * (2.5 + 1.5 * np.log(2.0 * np.pi * A * m_u * k_B / h**2) - np.log(per_mass))))
-    S = k_B * (const + N * (1.5 * np.log(T) - np.log(rho)))
-    return Part(P=P, E=E + 0.0 * rho, S=S, P_rho=N * kT + 0.0 * rho, P_T=rho * N * k_B,
-                E_rho=np.zeros_like(P), E_T=1.5 * N * k_B + 0.0 * P,
-                S_rho=-k_B * N / rho + 0.0 * T, S_T=1.5 * k_B * N / T + 0.0 * rho)
