@@ -186,10 +186,12 @@ def about_physics() -> list:
         P("What is computed. For the composition and options chosen, Thermoplane evaluates the equation of "
           "state of stellar matter at every pixel of the density–temperature plane: ideal ions, radiation "
           "(P = aT⁴/3), electrons and positrons as a Fermi–Dirac gas of any degeneracy and relativity "
-          "(generalized Fermi–Dirac integrals; Cox & Giuli 1968, ch. 24), Saha ionization of hydrogen and "
-          "helium with the electron chemical potential and a pressure-ionization rule that ionizes them at "
-          "high density, and Coulomb corrections from a published fit for the one-component plasma "
-          "(Chabrier & Potekhin 1998, Phys. Rev. E 58, 4941) scaled by the ionization. Metals are taken as "
+          "(generalized Fermi–Dirac integrals; Cox & Giuli 1968, ch. 24; tabulated as one free energy after "
+          "Timmes & Swesty 2000 so every derivative is consistent), Saha ionization of hydrogen and helium "
+          "(ground states only) with the electron chemical potential, a pressure-ionization rule of our own "
+          "in the spirit of Hummer & Mihalas (1988) that ionizes them completely above about 10 g cm⁻³, and "
+          "Coulomb corrections from the one-component-plasma fit of Potekhin & Chabrier (2000, Phys. Rev. "
+          "E 62, 8554), scaled by the square of the ionized fraction (our own rule). Metals are taken as "
           "fully ionized. The derivatives give Γ₁, ∇_ad and the sound speed."),
         P("The lines. P_rad = P_gas; electron degeneracy η = 0; relativistic electrons x_F = 1 "
           "(Chandrasekhar 1939); pair onset where positrons reach 1 % of the electrons; Coulomb coupling "
@@ -202,8 +204,12 @@ def about_physics() -> list:
           "equation of state."),
         P("Where it fails. No molecules or neutral metals (below about 10⁴ K at low density the results "
           "are approximate); no neutronization, nuclear statistical equilibrium or neutrino losses; the "
-          "Coulomb and pressure-ionization treatments are approximate near ρ ~ 1–100 g cm⁻³ at low T; "
-          "screening is weak screening only, so burning rates in dense, cool plasma are underestimated."),
+          "Coulomb and pressure-ionization treatments are approximate near ρ ~ 1–10 g cm⁻³ at low T (inside "
+          "the pressure-ionization band the thermodynamic identities hold only approximately); plain Saha "
+          "leaves a few per cent of H neutral near ρ ~ 1 g cm⁻³, T ~ 3×10⁶ K, where real matter is ionized; "
+          "the Coulomb term can exceed the ideal pressure with full ionization or classical electrons at low "
+          "T; screening is weak screening only, so burning rates in dense, cool plasma are underestimated. "
+          "The lines on the map are read off the map's own pixels (refine the resolution for finer lines)."),
         P("Results are for exploration and checks. For a publication, compare against a full tabulated "
           "equation of state.", className="strong"),
     ]
