@@ -248,7 +248,7 @@ def _df(**cols):
     ("log_rho", "log_T", True, True), ("logRho", "logT", True, True), ("lg_rho", "lg_T", True, True),
     ("log10_rho", "log10(T)", True, True), ("log(rho) [g/cm3]", "log T", True, True),
     ("log_rho_c", "log_Tc", True, True),
-    ("log_center_rho", "log_center_T", True, True), ("logrhoc", "logtc", True, True),
+    ("log_centre_rho", "log_centre_T", True, True), ("logrhoc", "logtc", True, True),
     ("rho", "T", False, False), ("density", "temperature", False, False), ("rho_c", "T_c", False, False),
     ("center_rho", "central_temperature", False, False), ("Rho [g/cm3]", "T (K)", False, False),
 ])
