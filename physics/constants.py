@@ -10,7 +10,7 @@ import scipy.constants as _sc
 
 __all__ = [
     "c", "h", "hbar", "k_B", "m_e", "m_u", "m_p", "e_esu", "eV", "sigma_sb",
-    "a_rad", "G", "M_sun", "N_A", "m_e_c2",
+    "a_rad", "G", "M_sun", "N_A", "m_e_c2", "n_e_relativistic",
 ]
 
 #: speed of light, cm s^-1
@@ -43,6 +43,9 @@ M_sun = 1.3271244e26 / G
 N_A = _sc.N_A
 #: electron rest energy, erg
 m_e_c2 = m_e * c * c
+#: electron density (cm^-3) at which the T = 0 Fermi momentum equals m_e c (x_F = 1):
+#: n = (8 pi / 3) (m_e c / h)^3 (Chandrasekhar 1939); rho ye = 9.739e5 g cm^-3 there
+n_e_relativistic = 8.0 * math.pi / 3.0 * (m_e * c / h) ** 3
 
 # sanity for readers: a_rad = 7.5657e-15 erg cm^-3 K^-4
 assert math.isclose(a_rad, 7.5657e-15, rel_tol=1e-4)

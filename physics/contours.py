@@ -25,8 +25,6 @@ __all__ = ["level_line", "grid_boundaries", "grid_ignition", "grid_mass_lines", 
 #: At most this many crossings per column are kept (pieces of one line).
 MAX_PIECES = 4
 
-# rho * ye / m_u at x_F = 1: (8 pi / 3) (m_e c / h)^3 (electrons per cm^3)
-_N_XF1 = 8.0 * np.pi / 3.0 * (const.m_e * const.c / const.h) ** 3
 
 
 def level_line(x: np.ndarray, y: np.ndarray, field: np.ndarray, level: float, along: str = "y"):
@@ -82,7 +80,7 @@ def grid_boundaries(grid, comp, keys=None, **physics_options):
     levels = {
         "equality": (grid.get("log_prad_pgas"), 0.0, "y"),
         "degeneracy": (grid.get("eta"), DEGENERACY_ETA, "y"),
-        "relativistic": (x[None, :] + log_ye, np.log10(_N_XF1 * const.m_u * RELATIVISTIC_XF**3), "x"),
+        "relativistic": (x[None, :] + log_ye, np.log10(const.n_e_relativistic * const.m_u * RELATIVISTIC_XF**3), "x"),
         "pairs": (grid.get("log_pair_fraction"), np.log10(PAIR_ONSET), "y"),
         "coupling": (grid.get("log_Gamma"), np.log10(COUPLING_GAMMA), "y"),
         "crystallization": (grid.get("log_Gamma"), np.log10(CRYSTALLIZATION_GAMMA), "y"),

@@ -35,7 +35,7 @@ _MC2 = const.m_e * const.c ** 2
 #: (8 pi sqrt2 / h^3) (m_e c)^3, cm^-3
 _CN = 8.0 * np.pi * np.sqrt(2.0) * (const.m_e * const.c / const.h) ** 3
 #: (8 pi / 3) (m_e c / h)^3: electrons per cm^3 at x_F = 1 (T = 0)
-_CX = 8.0 * np.pi / 3.0 * (const.m_e * const.c / const.h) ** 3
+_CX = const.n_e_relativistic
 
 
 class ElectronGas(NamedTuple):

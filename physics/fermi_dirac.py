@@ -60,7 +60,6 @@ def _nodes(eta, theta):
     bp = [np.maximum(e + _OFF[0], _S[0])]
     for off, gap in zip(_OFF[1:], _S[1:]):
         bp.append(np.maximum(e + off, bp[-1] + gap))
-    x1 = bp[0]
     X = np.empty((P, N_NODES))
     W = np.empty((P, N_NODES))
     # pieces in u, x = b sinh^2 u, up to bp[_N_U - 1]

@@ -38,7 +38,7 @@ import numpy as np
 from . import constants as const
 from .composition import Composition
 from .electron_table import _merge, onset_state, table_eta, table_state
-from .electrons import _CN, ElectronGas, ElectronState, electron_state
+from .electrons import _CN, ElectronGas, ElectronState
 from .ionization import ELEMENTS, ionization_stages
 from .thermo import Part
 

@@ -59,7 +59,7 @@ BOUNDARY_LABELS = {
 }
 
 # (8 pi / 3) (m_e c / h)^3: electrons per cm^3 at x_F = 1 (T = 0 Fermi sphere, spin 2)
-_N_XF1 = 8.0 * np.pi / 3.0 * (const.m_e * const.c / const.h) ** 3
+_N_XF1 = const.n_e_relativistic
 
 
 def fermi_momentum_ratio(rho, ye) -> np.ndarray:
@@ -253,7 +253,6 @@ def boundaries(comp, log_rho=(-10.0, 10.0), log_T=(3.0, 10.0), n: int = 400, *,
     ladder = check_count("ladder", ladder, (8, 200))
     steps = check_count("steps", steps, (1, 60))
     keys = _active_keys(comp, opts)
-    col_keys = [k for k in keys if k not in _ALONG_RHO]
     row_keys = [k for k in keys if k in _ALONG_RHO]
 
     x_rho = np.linspace(*lr, n)                     # fixed coordinate of each column

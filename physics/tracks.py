@@ -20,33 +20,31 @@ import pandas as pd
 from . import constants as const
 from .composition import NUCLIDES, Composition
 from .eos import ThermoState, evaluate, validate_options
+from .regimes import (COUPLING_GAMMA, CRYSTALLIZATION_GAMMA, DEGENERACY_ETA, HALF_IONIZATION, PAIR_ONSET,
+                      RELATIVISTIC_XF)
 
 __all__ = ["PAIR_ONSET", "RHO_YE_RELATIVISTIC", "BOUNDARY_FIELDS", "CROSSING_COLUMNS", "TrackState",
            "boundary_fields", "find_crossings", "downsample", "evaluate_track", "track_report"]
 
-#: Positron-to-electron number ratio n_+/n_- taken as the onset of pair
-#: production (common practice, no source: a choice of ours; at 1 % the
-#: positrons start to matter for the pressure and energy budget).
-PAIR_ONSET = 0.01
 
 #: rho * ye (g cm^-3) at which the electron Fermi momentum equals m_e c
 #: (x_F = 1), fully degenerate electrons: n_e = rho ye / m_u =
 #: (8 pi / 3) (m_e c / h)^3 x_F^3 (Chandrasekhar 1939, An Introduction to the
 #: Study of Stellar Structure, ch. X). With CODATA 2018 constants it is
 #: 9.7393e5 g cm^-3 (often quoted as 9.74e5).
-RHO_YE_RELATIVISTIC = (8.0 * math.pi / 3.0) * (const.m_e * const.c / const.h) ** 3 * const.m_u
+RHO_YE_RELATIVISTIC = const.n_e_relativistic * const.m_u
 
 #: Boundary key -> (field whose crossing of ``level`` marks the boundary, level).
 #: The fields are computed by :func:`boundary_fields`.
 BOUNDARY_FIELDS: dict[str, tuple[str, float]] = {
     "equality": ("log10(P_rad / P_gas)", 0.0),
-    "degeneracy": ("eta", 0.0),
-    "relativistic": ("x_F = (rho ye / RHO_YE_RELATIVISTIC)^(1/3)", 1.0),
+    "degeneracy": ("eta", DEGENERACY_ETA),
+    "relativistic": ("x_F = (rho ye / RHO_YE_RELATIVISTIC)^(1/3)", RELATIVISTIC_XF),
     "pairs": ("n_plus / n_minus", PAIR_ONSET),
-    "coupling": ("log10(Gamma)", 0.0),
-    "crystallization": ("Gamma", 175.0),
-    "h_ionization": ("ion_H", 0.5),
-    "he_ionization": ("ion_He2", 0.5),
+    "coupling": ("log10(Gamma)", float(np.log10(COUPLING_GAMMA))),
+    "crystallization": ("Gamma", CRYSTALLIZATION_GAMMA),
+    "h_ionization": ("ion_H", HALF_IONIZATION),
+    "he_ionization": ("ion_He2", HALF_IONIZATION),
 }
 
 #: Columns of the DataFrame returned by :func:`find_crossings`.

@@ -11,7 +11,7 @@ import json
 import logging
 import math
 
-from dash import Input, Output, State, html, no_update
+from dash import Input, Output, html, no_update
 
 import physics as ph
 

@@ -15,15 +15,7 @@ sys.path.insert(0, os.path.join(os.path.dirname(__file__), "..", ".."))
 from physics import constants as const  # noqa: E402
 from physics.electron_table import table_state  # noqa: E402
 from physics.electrons import electron_state  # noqa: E402
-
-
-def best(fun, repeat):
-    times = []
-    for _ in range(repeat):
-        t0 = time.perf_counter()
-        fun()
-        times.append(time.perf_counter() - t0)
-    return min(times)
+from tests.benchmarks.timing import best  # noqa: E402
 
 
 def main():

@@ -16,18 +16,10 @@ sys.path.insert(0, os.path.join(os.path.dirname(__file__), "..", ".."))
 
 from physics import constants as const  # noqa: E402
 from physics.electrons import electron_state  # noqa: E402
+from tests.benchmarks.timing import best  # noqa: E402
 
 MC2 = const.m_e * const.c ** 2
 CN = 8 * np.pi * np.sqrt(2) * (const.m_e * const.c / const.h) ** 3
-
-
-def best(fun, repeat):
-    times = []
-    for _ in range(repeat):
-        t0 = time.perf_counter()
-        fun()
-        times.append(time.perf_counter() - t0)
-    return min(times)
 
 
 def naive_point(n, T):

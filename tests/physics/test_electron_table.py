@@ -1,6 +1,5 @@
 """Tests of physics.electron_table: accuracy against the exact gas, consistency, limits, fallback."""
 
-import mpmath as mp
 import numpy as np
 import pytest
 
@@ -8,6 +7,7 @@ from physics import constants as const
 from physics.electron_table import ONSET_TABLES, in_table, onset_state, table_eta, table_state
 from physics.electrons import electron_state
 from physics.matter import NEGLIGIBLE_POSITRONS, PAIR_TABLE_LOG_T, _positron_bound
+from tests.physics.references import chandrasekhar_P
 
 NX = 8 * np.pi / 3 * (const.m_e * const.c / const.h) ** 3   # n at x_F = 1
 
@@ -68,13 +68,6 @@ def test_consistency_identities(pairs):
     assert np.max(np.abs(g.S - S2) / sc) < 1e-10
     # (eta, T) partials of the gas are the implicit-function transforms of the (n, T) ones
     assert np.allclose(g.dn_deta * s.deta_dn, 1.0, rtol=1e-12)
-
-
-def chandrasekhar_P(x):
-    """T = 0 pressure (source: Chandrasekhar 1939), in mpmath to avoid cancellation."""
-    x = mp.mpf(x)
-    pre = mp.pi * const.m_e ** 4 * const.c ** 5 / (3 * const.h ** 3)
-    return float(pre * (x * (2 * x * x - 3) * mp.sqrt(1 + x * x) + 3 * mp.asinh(x)))
 
 
 @pytest.mark.parametrize("x", [0.1, 0.5, 1.0, 3.0, 10.0, 100.0])

@@ -2,22 +2,15 @@
 
 import warnings
 
-import mpmath as mp
 import numpy as np
 import pytest
 
 from physics import constants as const
 from physics.electrons import electron_gas, electron_state, solve_eta
+from tests.physics.references import chandrasekhar_P
 
 MC2 = const.m_e * const.c ** 2
 NX = 8 * np.pi / 3 * (const.m_e * const.c / const.h) ** 3   # n at x_F = 1
-
-
-def chandrasekhar_P(x):
-    """T = 0 pressure (source: Chandrasekhar 1939), in mpmath to avoid cancellation."""
-    x = mp.mpf(x)
-    pre = mp.pi * const.m_e ** 4 * const.c ** 5 / (3 * const.h ** 3)
-    return float(pre * (x * (2 * x * x - 3) * mp.sqrt(1 + x * x) + 3 * mp.asinh(x)))
 
 
 @pytest.mark.parametrize("x", [0.1, 0.5, 1.0, 3.0, 10.0, 100.0])
