@@ -10,7 +10,8 @@ import json
 import math
 import sys
 
-import physics as ph
+from .. import physics as ph
+from ..physics.regimes import describe
 
 EXIT_USAGE = 2
 
@@ -86,12 +87,15 @@ def cmd_point(args) -> int:
     comp = _composition(args)
     state = ph.evaluate(args.rho, args.T, comp, **_physics_options(args))
     values = state.at(())
+    regime, modifiers = describe(state, comp)
     if args.json:
         out = {"composition": comp.to_dict(), "mu": comp.mu, "mu_e": comp.mu_e, "mu_ion": comp.mu_ion,
+               "regime": regime, "modifiers": modifiers,
                "state": values, "units": {k: ph.FIELD_UNITS[k] for k in values}}
         print(json.dumps(out, indent=2))
     else:
         print(f"composition: {comp!r}  (mu = {comp.mu:.5g}, mu_e = {comp.mu_e:.5g}, mu_ion = {comp.mu_ion:.5g})")
+        print(f"regime: {regime}" + (f"; {', '.join(modifiers)}" if modifiers else ""))
         for name, value in values.items():
             print(f"  {name:<12} {value:>14.6g}  {ph.FIELD_UNITS[name]:<22} {ph.FIELD_DESCRIPTIONS[name]}")
     return 0

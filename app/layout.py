@@ -10,8 +10,8 @@ from __future__ import annotations
 
 from dash import dash_table, dcc, html
 
-import physics as ph
-from physics import burning, plane, regimes
+from .. import physics as ph
+from ..physics import burning, plane, regimes
 
 from . import figures
 from .state import COLOR_CHOICES, DEFAULT_VIEW, UI_RESOLUTION, view_to_controls

@@ -9,7 +9,7 @@ from pathlib import Path
 def assets_dir() -> str:
     """The folder Dash serves as /assets: the package ``app.assets`` (the top-level assets/ folder)."""
     try:
-        path = Path(str(resources.files("app.assets")))
+        path = Path(str(resources.files("thermoplane.app.assets")))
         if (path / "thermoplane.css").exists():
             return str(path)
     except (ModuleNotFoundError, TypeError):

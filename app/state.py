@@ -14,9 +14,9 @@ import math
 import re
 from urllib.parse import parse_qs, urlencode
 
-import physics as ph
-from physics import eos, plane, regimes
-from physics.burning import PROCESSES
+from .. import physics as ph
+from ..physics import eos, plane, regimes
+from ..physics.burning import PROCESSES
 
 __all__ = ["DEFAULT_VIEW", "CONTROLS", "QUANTITY_NAMES", "COLOR_CHOICES", "UI_RESOLUTION",
            "encode_view", "decode_view", "view_to_controls", "controls_to_view", "parse_number_list"]

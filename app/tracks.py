@@ -6,14 +6,14 @@ map to density and temperature, what is the state and the pressure regime of
 every row, where does the track cross each regime boundary, and what small
 part of it goes to the browser to be drawn and kept across reloads?
 
-Shared by :mod:`app.cli` (``thermoplane track``) and
+Shared by :mod:`thermoplane.app.cli` (``thermoplane track``) and
 :mod:`app.callbacks.tracks`; no Dash import here, so everything is testable
 as plain functions.
 
 Limits (kept in the browser's local storage, which holds a few MB per site):
 
 - :data:`MAX_STORED_ROWS` (20 000) rows per track: longer tracks are thinned
-  with :func:`physics.tracks.downsample` to evenly spaced rows plus both
+  with :func:`thermoplane.physics.tracks.downsample` to evenly spaced rows plus both
   rows of every crossing and the two ends. The full report (every row) is
   computed once at upload; its crossings are shown as long as the mapping,
   composition and physics options are those of the upload. After a change the
@@ -35,9 +35,9 @@ from dataclasses import asdict
 import numpy as np
 import pandas as pd
 
-from physics import regimes, structure
-from physics.composition import Composition
-from physics.tracks import TrackState, downsample, track_report
+from ..physics import regimes, structure
+from ..physics.composition import Composition
+from ..physics.tracks import TrackState, downsample, track_report
 
 from .upload import ColumnMapping, TrackData, apply_mapping, detect_columns, read_table
 
@@ -94,7 +94,7 @@ def enrich(df: pd.DataFrame, mapping: ColumnMapping, comp: Composition, **physic
     comp : Composition
         Composition of every row (or the metal mixture when X/Y are mapped).
     **physics_options
-        Passed to :func:`physics.evaluate`.
+        Passed to :func:`thermoplane.physics.evaluate`.
 
     Returns
     -------
@@ -103,8 +103,8 @@ def enrich(df: pd.DataFrame, mapping: ColumnMapping, comp: Composition, **physic
         etc. when the input already has that name). Bad rows keep their input
         cells and have NaN (regime ``""``) in the computed ones.
     crossings : pandas.DataFrame
-        :func:`physics.tracks.find_crossings` columns plus ``label`` (the
-        words of :data:`physics.regimes.BOUNDARY_LABELS`).
+        :func:`thermoplane.physics.tracks.find_crossings` columns plus ``label`` (the
+        words of :data:`thermoplane.physics.regimes.BOUNDARY_LABELS`).
     data : TrackData
         The validated track (log rho, log T, age, bad rows and reasons).
 
@@ -205,8 +205,8 @@ def demo_tracks(comp: Composition, n_points: int = 160, **physics_options) -> li
     n_points : int
         Rows per central line (log rho_c evenly spaced in [-1, 8]).
     **physics_options
-        Passed to :func:`physics.structure.central_line` and
-        :func:`physics.structure.polytrope_profile`.
+        Passed to :func:`thermoplane.physics.structure.central_line` and
+        :func:`thermoplane.physics.structure.polytrope_profile`.
 
     Returns
     -------
@@ -220,9 +220,9 @@ def demo_tracks(comp: Composition, n_points: int = 160, **physics_options) -> li
     Notes
     -----
     A central line is T_c(rho_c) of an n = 3 polytrope of fixed mass
-    (:func:`physics.structure.central_line`), a quasi-static contraction
+    (:func:`thermoplane.physics.structure.central_line`), a quasi-static contraction
     sequence, not an evolved star. The profile is
-    :func:`physics.structure.polytrope_profile` with rho_c = 54.18 x 1.41 g cm^-3.
+    :func:`thermoplane.physics.structure.polytrope_profile` with rho_c = 54.18 x 1.41 g cm^-3.
     """
     log_rho_c = np.linspace(-1.0, 8.0, int(n_points))
     T = structure.central_line(np.asarray(DEMO_MASSES)[:, None], comp, 10.0 ** log_rho_c[None, :],

@@ -1,4 +1,4 @@
-"""WSGI entry point for a group server: ``gunicorn app.wsgi:server``."""
+"""WSGI entry point for a group server: ``gunicorn thermoplane.app.wsgi:server``."""
 
 from .main import create_app
 

@@ -149,7 +149,7 @@ def carbon_q_value() -> float:
     Notes
     -----
     Q = (2 M(C-12) - M(Mg-24)) c^2 = 13.93 MeV from the AME2020 atomic masses of
-    :mod:`physics.composition`. This is the energy of turning two C-12 into the
+    :mod:`thermoplane.physics.composition`. This is the energy of turning two C-12 into the
     mass of one Mg-24; the immediate exit channels release less
     (Ne-20 + alpha 4.62 MeV, Na-23 + p 2.24 MeV), and the rest comes from the
     follow-up captures of the liberated protons and alphas on the ashes. Using
@@ -282,7 +282,7 @@ def epsilon(rho, T, comp: Composition, process: str, *, screening: bool = True) 
 
     Examples
     --------
-    >>> from physics import Composition
+    >>> from thermoplane.physics import Composition
     >>> he = Composition({"He-4": 1.0})
     >>> 0.1 < float(epsilon(1e4, 1e8, he, "triple_alpha")) < 100
     True

@@ -212,7 +212,8 @@ class Composition:
                      for n, x, a, z in zip(self.names, self.X, self.A, self.Z))
 
     def to_dict(self) -> dict[str, float]:
-        return {n: float(x) for n, x in zip(self.names, self.X)}
+        """Nuclide -> mass fraction, rounded to 12 significant digits (no float noise such as 0.009000000000000001)."""
+        return {n: float(f"{x:.12g}") for n, x in zip(self.names, self.X)}
 
     def __repr__(self) -> str:
         inner = ", ".join(f"{n!r}: {x:.6g}" for n, x in zip(self.names, self.X))

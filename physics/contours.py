@@ -1,11 +1,11 @@
 """Lines of constant value read off an evaluated plane, with no further physics.
 
-The question this module answers: given a :class:`~physics.plane.PlaneGrid`
+The question this module answers: given a :class:`~thermoplane.physics.plane.PlaneGrid`
 already computed for a map, where do the regime boundaries, the ignition
 contours and the central lines of stars run on it? Every line is a level set
 of a field the grid holds, found column by column (or row by row for the
 nearly vertical x_F = 1 line) by linear interpolation between neighbouring
-pixels — vectorised over the whole grid. :func:`physics.regimes.boundaries`
+pixels — vectorised over the whole grid. :func:`thermoplane.physics.regimes.boundaries`
 refines the same lines to 1e-6 dex with extra equation-of-state calls; the
 lines here are as fine as the map's pixels (a tenth of a pixel or better where
 the field is smooth), which is what a drawn map needs, at a cost of a few
@@ -69,7 +69,7 @@ def level_line(x: np.ndarray, y: np.ndarray, field: np.ndarray, level: float, al
 def grid_boundaries(grid, comp, keys=None, **physics_options):
     """The regime boundaries on a computed plane: list of (key, label, log_rho, log_T).
 
-    Same keys, levels and labels as :func:`physics.regimes.boundaries`.
+    Same keys, levels and labels as :func:`thermoplane.physics.regimes.boundaries`.
     """
     from .eos import validate_options
     opts = validate_options(**physics_options)
@@ -104,7 +104,7 @@ def grid_mass_lines(grid, masses):
     """Central lines of n = 3 polytropes read off the plane: P = W_3 G M^(2/3) rho^(4/3).
 
     Returns a list of (mass, log_rho, log_T); the lowest-T crossing per column
-    (the same root as :func:`physics.structure.central_line`) forms the line.
+    (the same root as :func:`thermoplane.physics.structure.central_line`) forms the line.
     """
     from .structure import polytrope_constants
     W3 = polytrope_constants(3).W_n

@@ -116,7 +116,7 @@ def coupling_parameter(rho, T, X, A, Z):
 
 
 def coulomb_part(rho, T, X, A, Z, scale=1.0) -> Part:
-    """Coulomb corrections of the ion mixture as a :class:`~physics.thermo.Part`.
+    """Coulomb corrections of the ion mixture as a :class:`~thermoplane.physics.thermo.Part`.
 
     Parameters
     ----------
@@ -127,7 +127,7 @@ def coulomb_part(rho, T, X, A, Z, scale=1.0) -> Part:
     scale : ndarray or float
         Factor multiplying the whole correction, held fixed in the
         derivatives (the equation of state passes the square of the ionized
-        fraction, see :mod:`physics.eos`).
+        fraction, see :mod:`thermoplane.physics.eos`).
 
     Notes
     -----

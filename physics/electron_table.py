@@ -1,6 +1,6 @@
 """Tabulated electron–positron gas: fast and thermodynamically consistent.
 
-Which question this module answers: the same as :mod:`physics.electrons`
+Which question this module answers: the same as :mod:`thermoplane.physics.electrons`
 (pressure, energy, entropy, chemical potential and their derivatives of the
 electron–positron gas at given net electron density and temperature), at a
 small fraction of the cost, with every quantity taken from ONE interpolated
@@ -35,7 +35,7 @@ n-derivatives by the even-in-n expansions (Gibbs–Duhem, dP = S dT + n dmu)
 
 which need no subtraction of nearly equal numbers.
 
-Node data come from :func:`physics.electrons.electron_state` (third and
+Node data come from :func:`thermoplane.physics.electrons.electron_state` (third and
 fourth derivatives by five-point central differences in v of the analytic
 F_uu and F_uv).  Outside the table the exact routine is called for those
 points only.
@@ -326,7 +326,7 @@ class _Table:
 def _table(pairs):
     path = _DATA / _FILES[pairs]
     if not path.exists():
-        raise FileNotFoundError(f"{path} is missing; create it with `python -m physics.electron_table --build`")
+        raise FileNotFoundError(f"{path} is missing; create it with `python -m thermoplane.physics.electron_table --build`")
     with np.load(path) as data:
         return _Table({k: data[k] for k in data.files})
 
@@ -505,7 +505,7 @@ def table_state(n_net, T, pairs=True):
     Returns
     -------
     ElectronState
-        Same fields and meaning as :func:`physics.electrons.electron_state`.
+        Same fields and meaning as :func:`thermoplane.physics.electrons.electron_state`.
         Inside :data:`TABLE_RANGE` every thermodynamic field is a derivative of
         one interpolated free energy; n_plus and n_minus come from a separate
         bicubic table of ln n_plus (for display).  Outside, the exact solver.
@@ -515,7 +515,7 @@ def table_state(n_net, T, pairs=True):
     ValueError
         If n_net or T is not finite and positive, or pairs is not a bool.
     FileNotFoundError
-        If the table file is missing (build it with ``python -m physics.electron_table --build``).
+        If the table file is missing (build it with ``python -m thermoplane.physics.electron_table --build``).
 
     Notes
     -----
@@ -637,7 +637,7 @@ def onset_state(n_net, T):
     -------
     ElectronState
         As :func:`table_state` with pairs; within 1e-6 (relative; eta relative to max(|eta|, 1))
-        of :func:`physics.electrons.electron_state` in P, E and eta wherever positrons exceed
+        of :func:`thermoplane.physics.electrons.electron_state` in P, E and eta wherever positrons exceed
         1e-10 of the net electrons (tests/physics/test_electron_table.py).  Points outside every
         fine table go to the exact quadrature.
 
@@ -646,7 +646,7 @@ def onset_state(n_net, T):
     ValueError
         If n_net or T is not finite and positive.
     FileNotFoundError
-        If a table file is missing (build it with ``python -m physics.electron_table --build``).
+        If a table file is missing (build it with ``python -m thermoplane.physics.electron_table --build``).
 
     Notes
     -----
@@ -668,8 +668,8 @@ def onset_state(n_net, T):
 
 
 def main(argv=None):
-    """``python -m physics.electron_table --build``: write both table files."""
-    ap = argparse.ArgumentParser(prog="python -m physics.electron_table", description=main.__doc__)
+    """``python -m thermoplane.physics.electron_table --build``: write both table files."""
+    ap = argparse.ArgumentParser(prog="python -m thermoplane.physics.electron_table", description=main.__doc__)
     ap.add_argument("--build", action="store_true", help="compute and write the .npz tables")
     ap.add_argument("--dlogn", type=float, default=0.05)
     ap.add_argument("--dlogT", type=float, default=0.05)

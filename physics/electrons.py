@@ -7,7 +7,7 @@ how do they change with density and temperature?
 
 Formulas: Cox & Giuli (1968, *Principles of Stellar Structure*, ch. 24), with
 theta = k T / (m_e c^2) and the generalized Fermi–Dirac integrals F_k of
-:mod:`physics.fermi_dirac`:
+:mod:`thermoplane.physics.fermi_integrals`:
 
     n_- = (8 pi sqrt2 / h^3) (m_e c)^3 theta^(3/2) [F_1/2 + theta F_3/2]
     P_- = (16 pi sqrt2 / (3 h^3)) m_e^4 c^5 theta^(5/2) [F_3/2 + theta/2 F_5/2]
@@ -27,7 +27,7 @@ from typing import NamedTuple
 import numpy as np
 
 from . import constants as const
-from .fermi_dirac import _BLOCK, _nodes
+from .fermi_integrals import _BLOCK, _nodes
 
 __all__ = ["ElectronGas", "ElectronState", "electron_gas", "solve_eta", "electron_state"]
 

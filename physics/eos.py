@@ -162,11 +162,11 @@ def evaluate(rho, T, comp: Composition, **options) -> ThermoState:
     Notes
     -----
     P = P_ion + P_e + P_coul + P_rad; response functions from
-    :func:`physics.thermo.response`.
+    :func:`thermoplane.physics.thermo.response`.
 
     Examples
     --------
-    >>> from physics import Composition
+    >>> from thermoplane.physics import Composition
     >>> s = evaluate(1.0, 1e7, Composition({"H-1": 1.0}), electrons="classical", ionization="full")
     >>> round(float(s.beta), 6)
     0.999837

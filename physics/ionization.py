@@ -4,7 +4,7 @@ chemical potential, and a pressure-ionization rule.
 The question this module answers: at given electron degeneracy eta,
 temperature T and density, what fraction of each element sits in each
 ionization stage, and how do those fractions respond to eta, T and rho?
-The equation of state (:mod:`physics.eos`) closes the system by charge
+The equation of state (:mod:`thermoplane.physics.eos`) closes the system by charge
 neutrality.
 
 Model

@@ -12,7 +12,7 @@ electron gas at eta equals the free electrons the ions give up,
 
 with N_fixed the electrons per gram of nuclei taken as fully ionized (all
 metals; every nuclide when ionization="full") and zbar_s the Saha mean charge
-of H and He (:mod:`physics.ionization`). G increases with eta, so the root is
+of H and He (:mod:`thermoplane.physics.ionization`). G increases with eta, so the root is
 unique; it is found by safeguarded Newton iterations on
 ln n_gas - ln n_free. Derivatives follow by implicit differentiation:
 d eta / dx = -G_x / G_eta.

@@ -27,7 +27,7 @@ CACHE_MB = 256
 #: 1e-30 erg/g/s is irrelevant for any star, and a blank keeps the colour
 #: scale on the rates that matter. Our choice; common practice, no source.
 EPS_FLOOR = -30.0
-#: Burning processes mapped, as named by :func:`physics.burning.epsilon`.
+#: Burning processes mapped, as named by :func:`thermoplane.physics.burning.epsilon`.
 BURNING_PROCESSES = ("pp", "cno", "triple_alpha", "carbon")
 #: Accepted plane limits (log10 g cm^-3, log10 K) and resolutions.
 LOG_RHO_LIMITS = (-15.0, 15.0)
@@ -85,7 +85,7 @@ class PlaneGrid:
     fields : dict of str -> float32 ndarray, shape (n_T, n_rho)
         Row i is log_T[i]. Names and labels in :data:`QUANTITIES`.
     regime : int8 ndarray, shape (n_T, n_rho)
-        Index into :data:`physics.regimes.REGIMES`.
+        Index into :data:`thermoplane.physics.regimes.REGIMES`.
     unavailable : tuple of str
         Fields that are all NaN because their module is missing.
 
@@ -101,7 +101,7 @@ class PlaneGrid:
 
     @property
     def regimes(self):
-        """The regime table the codes index (:data:`physics.regimes.REGIMES`)."""
+        """The regime table the codes index (:data:`thermoplane.physics.regimes.REGIMES`)."""
         return REGIMES
 
     @property
@@ -216,7 +216,7 @@ def plane_grid(comp, log_rho=(-10.0, 10.0), log_T=(3.0, 10.0), n_rho: int = 300,
     n_rho, n_T : int
         Columns and rows, each 10..1000.
     **physics_options
-        Passed to :func:`physics.evaluate`.
+        Passed to :func:`thermoplane.physics.evaluate`.
 
     Returns
     -------
@@ -231,14 +231,14 @@ def plane_grid(comp, log_rho=(-10.0, 10.0), log_T=(3.0, 10.0), n_rho: int = 300,
 
     Notes
     -----
-    One call of :func:`physics.evaluate` on the whole meshgrid gives:
+    One call of :func:`thermoplane.physics.evaluate` on the whole meshgrid gives:
     log_prad_pgas = log10(P_rad/P_gas); beta; eta; gamma1; nabla_ad;
     log_Gamma = log10 Gamma; mean_ionization = Y_e(state) / Y_e(fully
     ionized) (free electrons over the fully ionized count, 0..1; net of
-    positrons); eps_X = log10 epsilon_X from :func:`physics.burning.epsilon`
+    positrons); eps_X = log10 epsilon_X from :func:`thermoplane.physics.burning.epsilon`
     for X in :data:`BURNING_PROCESSES`, NaN below :data:`EPS_FLOOR` (and
     all NaN, listed in ``unavailable``, while that module is missing);
-    regime codes from :func:`physics.regimes.classify_codes`.
+    regime codes from :func:`thermoplane.physics.regimes.classify_codes`.
 
     The cache is keyed by the composition's key, the limits rounded to 1e-9
     dex, the resolution and every physics option with defaults filled in. It

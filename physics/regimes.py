@@ -5,7 +5,7 @@ The question this module answers: for a composition, where on the
 (log rho, log T) plane does radiation overtake gas pressure, do electrons
 degenerate or become relativistic, do pairs appear, do ions couple or
 crystallize, and where are H and He half ionized? Every line comes from the
-full equation of state (:func:`physics.evaluate`), not from a textbook
+full equation of state (:func:`thermoplane.physics.evaluate`), not from a textbook
 asymptote, so it bends where the physics does.
 """
 
@@ -209,7 +209,7 @@ def boundaries(comp, log_rho=(-10.0, 10.0), log_T=(3.0, 10.0), n: int = 400, *,
     steps : int
         Bisection steps per bracket, 1..60, followed by one linear interpolation.
     **physics_options
-        Passed to :func:`physics.evaluate` (``electrons``, ``ionization``,
+        Passed to :func:`thermoplane.physics.evaluate` (``electrons``, ``ionization``,
         ``coulomb``, ``pairs``).
 
     Returns
@@ -235,7 +235,7 @@ def boundaries(comp, log_rho=(-10.0, 10.0), log_T=(3.0, 10.0), n: int = 400, *,
 
     Method: every field is evaluated on a ladder of ``ladder`` log T values
     in each of the ``n`` columns (the x_F line: a ladder of log rho values in
-    each log T row) in ONE call of :func:`physics.evaluate`. Every sign
+    each log T row) in ONE call of :func:`thermoplane.physics.evaluate`. Every sign
     change between neighbouring rungs is a bracket; all brackets of all
     fields are refined together by bisection, one evaluate call per step,
     and a last linear interpolation of the field inside the bracket. All
@@ -396,7 +396,7 @@ def classify(state) -> np.ndarray:
     Parameters
     ----------
     state : ThermoState
-        From :func:`physics.evaluate` (any object with the fields P_rad, P_gas,
+        From :func:`thermoplane.physics.evaluate` (any object with the fields P_rad, P_gas,
         P_e, n_plus, n_minus, eta, rho, ye).
 
     Returns
@@ -421,12 +421,41 @@ def classify(state) -> np.ndarray:
 
     Examples
     --------
-    >>> from physics import Composition, evaluate
+    >>> from thermoplane.physics import Composition, evaluate
     >>> s = evaluate(1e-8, 1e8, Composition({"H-1": 1.0}))
     >>> str(classify(s))
     'radiation'
     """
     return np.asarray(np.asarray(REGIME_KEYS)[classify_codes(state)])
+
+
+#: Words for each modifier of :func:`flags`, for readouts and the command line.
+FLAG_LABELS: dict[str, str] = {
+    "partially_ionized": "partially ionized",
+    "strongly_coupled": "strongly coupled ions (Γ > 1)",
+    "crystallized": "crystallized ions (Γ > 175)",
+}
+
+
+def describe(state, comp=None) -> tuple[str, list[str]]:
+    """The regime and the modifiers that hold at one point, in words.
+
+    Parameters
+    ----------
+    state : ThermoState
+        A scalar state from :func:`thermoplane.physics.evaluate`.
+    comp : Composition, optional
+        Passed to :func:`flags`.
+
+    Returns
+    -------
+    (str, list of str)
+        The label of the dominant-pressure regime (:data:`REGIMES`) and the labels
+        (:data:`FLAG_LABELS`) of the modifiers that hold there.
+    """
+    regime = REGIMES[int(np.ravel(classify_codes(state))[0])].label
+    marks = [FLAG_LABELS[k] for k, v in flags(state, comp).items() if bool(np.ravel(v)[0])]
+    return regime, marks
 
 
 def flags(state, comp=None) -> dict[str, np.ndarray]:
@@ -435,7 +464,7 @@ def flags(state, comp=None) -> dict[str, np.ndarray]:
     Parameters
     ----------
     state : ThermoState
-        From :func:`physics.evaluate`.
+        From :func:`thermoplane.physics.evaluate`.
     comp : Composition, optional
         When given, the H (He) test is made only if the composition holds H (He).
 

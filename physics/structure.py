@@ -276,7 +276,7 @@ def temperature_for_pressure(rho, P, comp, **physics_options) -> np.ndarray:
         Pressure, dyn cm^-2, > 0; broadcasts against ``rho``.
     comp : Composition
     **physics_options
-        Passed to :func:`physics.eos.evaluate` (its defaults otherwise).
+        Passed to :func:`thermoplane.physics.eos.evaluate` (its defaults otherwise).
 
     Returns
     -------
@@ -337,7 +337,7 @@ def central_line(mass_msun, comp, rho_c, **physics_options) -> np.ndarray:
     rho_c : array_like
         Central density, g cm^-3, > 0.
     **physics_options
-        Passed to :func:`physics.eos.evaluate` (``electrons``, ``ionization``,
+        Passed to :func:`thermoplane.physics.eos.evaluate` (``electrons``, ``ionization``,
         ``coulomb``, ``pairs``); its defaults otherwise.
 
     Returns
@@ -394,7 +394,7 @@ def polytrope_profile(mass_msun, comp, rho_c, n=3, n_points: int = 200, **physic
         Number of rows, >= 2, evenly spaced in xi from the centre up to (not
         including) the surface, where rho = 0.
     **physics_options
-        Passed to :func:`physics.eos.evaluate`.
+        Passed to :func:`thermoplane.physics.eos.evaluate`.
 
     Returns
     -------

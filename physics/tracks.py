@@ -61,7 +61,7 @@ class TrackState(dict):
 
     A dict whose entries are also attributes (``state.P_rad`` is
     ``state["P_rad"]``), so :func:`boundary_fields` takes it like a ThermoState.
-    Besides the :class:`~physics.eos.ThermoState` fields it holds ``ye_full``,
+    Besides the :class:`~thermoplane.physics.eos.ThermoState` fields it holds ``ye_full``,
     the electrons per nucleon of the full-ionization composition (1/mu_e) of
     each row, and ``valid``, the mask of evaluated rows.
     """
@@ -266,7 +266,7 @@ def evaluate_track(log_rho, log_T, comp: Composition, X=None, Y=None, valid=None
     composition_step : float
         Per-row (X, Y) are rounded to this step before grouping (1e-4).
     **physics_options
-        Passed to :func:`physics.eos.evaluate`.
+        Passed to :func:`thermoplane.physics.eos.evaluate`.
 
     Returns
     -------
@@ -411,7 +411,7 @@ def track_report(log_rho, log_T, comp: Composition, age=None, valid=None, X=None
     boundaries : iterable of str, optional
         Keys of :data:`BOUNDARY_FIELDS` to look for (default: all).
     **physics_options
-        Passed to :func:`physics.eos.evaluate`.
+        Passed to :func:`thermoplane.physics.eos.evaluate`.
 
     Returns
     -------

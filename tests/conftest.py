@@ -65,7 +65,7 @@ def server_url():
     (ROOT / ".pytest_cache").mkdir(exist_ok=True)
     port = free_port()
     url = f"http://127.0.0.1:{port}/"
-    proc = start_process([sys.executable, "-m", "app.cli", "serve", "--port", str(port)], url, "serve.log")
+    proc = start_process([sys.executable, "-m", "thermoplane.app.cli", "serve", "--port", str(port)], url, "serve.log")
     yield url
     stop_process(proc)
 

@@ -12,7 +12,7 @@ import math
 
 from dash import Input, Output, State, ctx, no_update
 
-import physics as ph
+from ... import physics as ph
 
 __all__ = ["CompositionError", "MixError", "number", "composition_from_view", "apply_rules",
            "add_mix_row", "register"]

@@ -10,7 +10,7 @@ import logging
 import numpy as np
 from dash import Input, Output, State, dcc, no_update
 
-from physics import regimes
+from ...physics import regimes
 
 from .map import ViewError, build, parse_view, quantity, view_from_store
 
@@ -85,7 +85,7 @@ def csv_export(n, store):
     if not n:
         return no_update, ""
     try:
-        from physics import plane
+        from ...physics import plane
         comp, opts, view = _checked(store)
         q = quantity(view["quantity"])
         k = int(view["resolution"])

@@ -1,10 +1,10 @@
-"""Lines drawn over the map, read off the map's own cached plane (:mod:`physics.contours`).
+"""Lines drawn over the map, read off the map's own cached plane (:mod:`thermoplane.physics.contours`).
 
 Every line is a level set of a field the plane already holds, so drawing,
 toggling or relabelling lines costs a few array passes and no physics call;
 switching the shaded quantity or the colour scale reuses the cached plane
-(:func:`physics.plane.plane_grid`). The lines are as fine as the map's pixels;
-:func:`physics.regimes.boundaries` and :func:`physics.structure.central_line`
+(:func:`thermoplane.physics.plane.plane_grid`). The lines are as fine as the map's pixels;
+:func:`thermoplane.physics.regimes.boundaries` and :func:`thermoplane.physics.structure.central_line`
 give the same lines to 1e-6 dex for scripts and tests.
 """
 
@@ -12,7 +12,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from physics import contours
+from ...physics import contours
 
 from .. import figures
 

@@ -12,8 +12,8 @@ import logging
 import numpy as np
 from dash import Input, Output, State, no_update
 
-import physics as ph
-from physics import eos, plane, regimes
+from ... import physics as ph
+from ...physics import eos, plane, regimes
 
 from .. import figures
 from ..state import COLOR_CHOICES, CONTROLS, DEFAULT_VIEW, QUANTITY_NAMES, UI_RESOLUTION, controls_to_view, \

@@ -13,7 +13,7 @@ import math
 
 from dash import Input, Output, html, no_update
 
-import physics as ph
+from ... import physics as ph
 
 from .map import ViewError, parse_view, view_from_store
 

@@ -21,7 +21,7 @@ import numpy as np
 import pandas as pd
 from dash import ALL, Input, Output, State, ctx, dash_table, dcc, html, no_update
 
-from physics import regimes
+from ...physics import regimes
 
 from .. import figures
 from .. import tracks as tk

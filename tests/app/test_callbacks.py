@@ -9,11 +9,11 @@ import plotly
 import pytest
 from dash import no_update
 
-import physics as ph
-from app.callbacks import composition, export, layers, point, share
-from app.callbacks import map as map_cb
-from app.state import DEFAULT_VIEW, encode_view, view_to_controls
-from physics import eos, plane
+from thermoplane import physics as ph
+from thermoplane.app.callbacks import composition, export, layers, point, share
+from thermoplane.app.callbacks import map as map_cb
+from thermoplane.app.state import DEFAULT_VIEW, encode_view, view_to_controls
+from thermoplane.physics import eos, plane
 
 # The textbook physics keeps these tests quick; the full physics goes through the same code.
 FAST = {"electrons": "classical", "ionization": "full", "coulomb": False, "pairs": False}
@@ -244,7 +244,7 @@ def test_spreadsheet_safe():
 
 
 def test_lines_are_read_off_the_cached_plane_without_physics(monkeypatch):
-    from physics import eos, plane
+    from thermoplane.physics import eos, plane
     comp = ph.Composition.from_xyz(0.7, 0.28, 0.02)
     grid = plane.plane_grid(comp, (-10, 10), (3, 10), 60, 60, electrons="classical", ionization="full",
                             coulomb=False, pairs=False)

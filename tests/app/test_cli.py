@@ -10,7 +10,7 @@ import pytest
 
 
 def run(*args):
-    return subprocess.run([sys.executable, "-m", "app.cli", *args], capture_output=True, text=True, timeout=120)
+    return subprocess.run([sys.executable, "-m", "thermoplane.app.cli", *args], capture_output=True, text=True, timeout=120)
 
 
 @pytest.mark.parametrize("args", [["--help"], ["serve", "--help"], ["point", "--help"], ["map", "--help"]])
@@ -21,7 +21,7 @@ def test_help(args):
 
 
 def test_point_json_has_every_state_field():
-    import physics as ph
+    from thermoplane import physics as ph
     r = run("point", "--rho", "1", "--T", "1e7", "--X", "0.7", "--Y", "0.28", "--Z", "0.02", "--json")
     assert r.returncode == 0, r.stderr
     out = json.loads(r.stdout)

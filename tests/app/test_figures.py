@@ -4,7 +4,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from app import figures
+from thermoplane.app import figures
 
 
 def _plane(n=40):

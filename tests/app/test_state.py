@@ -5,7 +5,7 @@ from __future__ import annotations
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-from app.state import (DEFAULT_VIEW, controls_to_view, decode_view, encode_view, parse_number_list,
+from thermoplane.app.state import (DEFAULT_VIEW, controls_to_view, decode_view, encode_view, parse_number_list,
                        view_to_controls)
 
 import pytest

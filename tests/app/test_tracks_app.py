@@ -12,13 +12,13 @@ import numpy as np
 import pandas as pd
 import pytest
 
-import physics as ph
-from app import tracks as tk
-from app.callbacks import map as map_cb
-from app.callbacks import tracks as ct
-from app.state import DEFAULT_VIEW, view_to_controls
-from app.upload import ColumnMapping
-from physics import regimes
+from thermoplane import physics as ph
+from thermoplane.app import tracks as tk
+from thermoplane.app.callbacks import map as map_cb
+from thermoplane.app.callbacks import tracks as ct
+from thermoplane.app.state import DEFAULT_VIEW, view_to_controls
+from thermoplane.app.upload import ColumnMapping
+from thermoplane.physics import regimes
 
 ROOT = Path(__file__).resolve().parents[2]
 EXAMPLES = ROOT / "assets" / "examples"

@@ -13,9 +13,9 @@ from pathlib import Path
 import pytest
 import scipy.constants as sc
 
-import physics as ph
-from physics import regimes
-from physics.tracks import BOUNDARY_FIELDS
+from thermoplane import physics as ph
+from thermoplane.physics import regimes
+from thermoplane.physics.tracks import BOUNDARY_FIELDS
 
 ROOT = Path(__file__).resolve().parents[2]
 EXAMPLES = ROOT / "assets" / "examples"
@@ -25,7 +25,7 @@ CLASSICAL = ["--electrons", "classical", "--ionization", "full", "--no-coulomb",
 
 
 def run(*args):
-    return subprocess.run([sys.executable, "-m", "app.cli", *map(str, args)], capture_output=True, text=True,
+    return subprocess.run([sys.executable, "-m", "thermoplane.app.cli", *map(str, args)], capture_output=True, text=True,
                           timeout=300, cwd=ROOT)
 
 

@@ -10,7 +10,7 @@ import pytest
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
-from app.upload import (MAX_BYTES, MAX_ROWS, ColumnMapping, TableError, TrackData, apply_mapping,
+from thermoplane.app.upload import (MAX_BYTES, MAX_ROWS, ColumnMapping, TableError, TrackData, apply_mapping,
                         detect_columns, read_table, to_numbers)
 
 EXAMPLES = Path(__file__).resolve().parents[2] / "assets" / "examples"

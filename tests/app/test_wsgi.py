@@ -1,4 +1,4 @@
-"""The Dockerfile's command, `gunicorn app.wsgi:server`, serves the page."""
+"""The Dockerfile's command, `gunicorn thermoplane.app.wsgi:server`, serves the page."""
 
 from __future__ import annotations
 
@@ -20,7 +20,7 @@ def test_dockerfile_runs_gunicorn_as_non_root():
     text = (ROOT / "Dockerfile").read_text()
     assert re.search(r"^USER\s+(?!root)\S+", text, re.M)
     cmd = dockerfile_command()
-    assert cmd[0] == "gunicorn" and "app.wsgi:server" in cmd
+    assert cmd[0] == "gunicorn" and "thermoplane.app.wsgi:server" in cmd
     assert "0.0.0.0:8050" in " ".join(cmd)
 
 

@@ -32,7 +32,7 @@ from tests.conftest import free_port, start_process, stop_process   # noqa: E402
 
 def map_request(app, values: dict, changed: str) -> dict:
     """The body the browser sends for the map callback, for control values keyed like state.CONTROLS."""
-    from app.state import CONTROLS
+    from thermoplane.app.state import CONTROLS
     key = next(k for k in app.callback_map if "plane-graph.figure" in k)
     spec = app.callback_map[key]
     outputs = []
@@ -69,13 +69,13 @@ def main() -> None:
     ap = argparse.ArgumentParser()
     ap.add_argument("--repeat", type=int, default=10)
     args = ap.parse_args()
-    from app.main import create_app
-    from app.state import DEFAULT_VIEW, view_to_controls
+    from thermoplane.app.main import create_app
+    from thermoplane.app.state import DEFAULT_VIEW, view_to_controls
     app = create_app()
     port = free_port()
     url = f"http://127.0.0.1:{port}/"
     (ROOT / ".pytest_cache").mkdir(exist_ok=True)
-    proc = start_process([sys.executable, "-m", "app.cli", "serve", "--port", str(port)], url, "bench_app.log")
+    proc = start_process([sys.executable, "-m", "thermoplane.app.cli", "serve", "--port", str(port)], url, "bench_app.log")
     try:
         s = requests.Session()
         post = lambda body: s.post(url + "_dash-update-component", json=body, timeout=600)

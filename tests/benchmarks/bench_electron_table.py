@@ -12,9 +12,9 @@ import numpy as np
 
 sys.path.insert(0, os.path.join(os.path.dirname(__file__), "..", ".."))
 
-from physics import constants as const  # noqa: E402
-from physics.electron_table import table_state  # noqa: E402
-from physics.electrons import electron_state  # noqa: E402
+from thermoplane.physics import constants as const  # noqa: E402
+from thermoplane.physics.electron_table import table_state  # noqa: E402
+from thermoplane.physics.electrons import electron_state  # noqa: E402
 from tests.benchmarks.timing import best  # noqa: E402
 
 

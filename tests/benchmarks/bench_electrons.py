@@ -14,8 +14,8 @@ from scipy.optimize import brentq
 
 sys.path.insert(0, os.path.join(os.path.dirname(__file__), "..", ".."))
 
-from physics import constants as const  # noqa: E402
-from physics.electrons import electron_state  # noqa: E402
+from thermoplane.physics import constants as const  # noqa: E402
+from thermoplane.physics.electrons import electron_state  # noqa: E402
 from tests.benchmarks.timing import best  # noqa: E402
 
 MC2 = const.m_e * const.c ** 2

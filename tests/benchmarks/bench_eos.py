@@ -15,8 +15,8 @@ import numpy as np
 
 sys.path.insert(0, os.path.join(os.path.dirname(__file__), "..", ".."))
 
-import physics as ph  # noqa: E402
-from physics import constants as const  # noqa: E402
+from thermoplane import physics as ph  # noqa: E402
+from thermoplane.physics import constants as const  # noqa: E402
 from tests.benchmarks.bench_electrons import best, naive_point  # noqa: E402
 
 TARGETS = {"full": 1500, "saha": 4000}     # exp-units per point (the performance issue)

@@ -19,8 +19,8 @@ import numpy as np
 
 sys.path.insert(0, str(Path(__file__).resolve().parents[2]))
 
-import physics as ph                     # noqa: E402
-from physics import plane, regimes       # noqa: E402
+from thermoplane import physics as ph                     # noqa: E402
+from thermoplane.physics import plane, regimes       # noqa: E402
 
 
 def best_of(fn, repeat: int = 3) -> float:

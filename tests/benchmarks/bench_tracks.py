@@ -27,10 +27,10 @@ import pandas as pd
 
 sys.path.insert(0, str(Path(__file__).resolve().parents[2]))
 
-import physics as ph                                  # noqa: E402
-from physics import tracks                            # noqa: E402
-from app import tracks as app_tracks                  # noqa: E402
-from app.upload import ColumnMapping                  # noqa: E402
+from thermoplane import physics as ph                                  # noqa: E402
+from thermoplane.physics import tracks                            # noqa: E402
+from thermoplane.app import tracks as app_tracks                  # noqa: E402
+from thermoplane.app.upload import ColumnMapping                  # noqa: E402
 
 
 def best_of(fn, repeat: int = 2):

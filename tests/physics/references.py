@@ -4,7 +4,7 @@ from __future__ import annotations
 
 import mpmath as mp
 
-from physics import constants as const
+from thermoplane.physics import constants as const
 
 
 def chandrasekhar_P(x):

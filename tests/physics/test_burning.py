@@ -15,9 +15,9 @@ import warnings
 import numpy as np
 import pytest
 
-from physics import Composition
-from physics import constants as const
-from physics.burning import (PROCESS_LABELS, PROCESSES, SCREENING_EXPONENT_CAP, IgnitionLine,
+from thermoplane.physics import Composition
+from thermoplane.physics import constants as const
+from thermoplane.physics.burning import (PROCESS_LABELS, PROCESSES, SCREENING_EXPONENT_CAP, IgnitionLine,
                              carbon_q_value, epsilon, ignition_contours, screening_factor)
 
 SUN_CENTRE = Composition.from_xyz(0.34, 0.64, 0.02)

@@ -5,7 +5,7 @@ from __future__ import annotations
 import numpy as np
 import pytest
 
-import physics as ph
+from thermoplane import physics as ph
 
 
 def test_mu_exact_sums_by_hand():

@@ -5,8 +5,8 @@ from __future__ import annotations
 import numpy as np
 import pytest
 
-import physics as ph
-from physics import contours, plane, regimes, structure
+from thermoplane import physics as ph
+from thermoplane.physics import contours, plane, regimes, structure
 
 COMP = ph.Composition.from_xyz(0.70, 0.28, 0.02)
 

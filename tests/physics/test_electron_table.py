@@ -3,10 +3,10 @@
 import numpy as np
 import pytest
 
-from physics import constants as const
-from physics.electron_table import ONSET_TABLES, in_table, onset_state, table_eta, table_state
-from physics.electrons import electron_state
-from physics.matter import NEGLIGIBLE_POSITRONS, PAIR_TABLE_LOG_T, _positron_bound
+from thermoplane.physics import constants as const
+from thermoplane.physics.electron_table import ONSET_TABLES, in_table, onset_state, table_eta, table_state
+from thermoplane.physics.electrons import electron_state
+from thermoplane.physics.matter import NEGLIGIBLE_POSITRONS, PAIR_TABLE_LOG_T, _positron_bound
 from tests.physics.references import chandrasekhar_P
 
 NX = 8 * np.pi / 3 * (const.m_e * const.c / const.h) ** 3   # n at x_F = 1

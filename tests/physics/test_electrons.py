@@ -5,8 +5,8 @@ import warnings
 import numpy as np
 import pytest
 
-from physics import constants as const
-from physics.electrons import electron_gas, electron_state, solve_eta
+from thermoplane.physics import constants as const
+from thermoplane.physics.electrons import electron_gas, electron_state, solve_eta
 from tests.physics.references import chandrasekhar_P
 
 MC2 = const.m_e * const.c ** 2

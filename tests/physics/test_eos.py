@@ -8,7 +8,7 @@ import scipy.constants as sc
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-import physics as ph
+from thermoplane import physics as ph
 
 SUN_LIKE = ph.Composition.from_xyz(0.70, 0.28, 0.02)
 

@@ -6,7 +6,7 @@ import numpy as np
 import pytest
 import scipy.constants as sc
 
-import physics as ph
+from thermoplane import physics as ph
 
 CLASSICAL = dict(electrons="classical", ionization="full", coulomb=False, pairs=False)
 

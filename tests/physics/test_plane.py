@@ -5,9 +5,9 @@ import threading
 import numpy as np
 import pytest
 
-import physics as ph
-from physics import plane
-from physics import regimes as rg
+from thermoplane import physics as ph
+from thermoplane.physics import plane
+from thermoplane.physics import regimes as rg
 
 SOLAR = ph.Composition.from_xyz(0.70, 0.28, 0.02)
 CLASSICAL = dict(electrons="classical", ionization="full", coulomb=False, pairs=False)
@@ -56,7 +56,7 @@ def test_values_equal_evaluate_at_sample_points():
 
 def test_burning_fields():
     try:
-        from physics import burning
+        from thermoplane.physics import burning
     except ModuleNotFoundError:
         pytest.skip("physics/burning.py is not there yet")
     g = plane.plane_grid(SOLAR, log_rho=(-4, 8), log_T=(6, 9.5), n_rho=12, n_T=11)

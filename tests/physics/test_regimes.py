@@ -5,9 +5,9 @@ from types import SimpleNamespace
 import numpy as np
 import pytest
 
-import physics as ph
-from physics import constants as const
-from physics import regimes as rg
+from thermoplane import physics as ph
+from thermoplane.physics import constants as const
+from thermoplane.physics import regimes as rg
 
 CLASSICAL = dict(electrons="classical", ionization="full", coulomb=False, pairs=False)
 SOLAR = ph.Composition.from_xyz(0.70, 0.28, 0.02)

@@ -8,9 +8,9 @@ import math
 import numpy as np
 import pytest
 
-from physics import Composition
-from physics import constants as const
-from physics.structure import (central_line, eddington_beta, eddington_coefficient, lane_emden,
+from thermoplane.physics import Composition
+from thermoplane.physics import constants as const
+from thermoplane.physics.structure import (central_line, eddington_beta, eddington_coefficient, lane_emden,
                                polytrope_constants, polytrope_profile, temperature_for_pressure)
 
 SOLAR_LIKE = Composition.from_xyz(0.70, 0.28, 0.02)
@@ -25,7 +25,7 @@ def _fermi_electrons_available() -> bool:
     The option may exist before the Fermi–Dirac electrons are wired in; then
     it either raises ValueError or returns the classical n_e k T.
     """
-    from physics import evaluate
+    from thermoplane.physics import evaluate
     try:
         evaluate(1.0, 1e7, SOLAR_LIKE, electrons="fermi")
         s = evaluate(1e6, 1e4, SOLAR_LIKE, **FERMI)
@@ -137,7 +137,7 @@ def test_central_line_classical_ideal_gas_limit():
 
 
 def test_central_line_reproduces_required_pressure():
-    from physics import evaluate
+    from thermoplane.physics import evaluate
     rho_c = np.array([1.0, 100.0, 1e4])
     T_c = central_line(1.0, SOLAR_LIKE, rho_c, **CLASSICAL)
     P = evaluate(rho_c, T_c, SOLAR_LIKE, **CLASSICAL).P
@@ -198,7 +198,7 @@ def test_profile_centre_matches_central_line_and_rho_decreases():
 
 
 def test_temperature_for_pressure_inverts_eos():
-    from physics import evaluate
+    from thermoplane.physics import evaluate
     rho = np.array([1e-4, 1.0, 1e5])
     T = np.array([2e4, 3e6, 5e8])
     P = evaluate(rho, T, SOLAR_LIKE, **CLASSICAL).P

@@ -10,8 +10,8 @@ import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-from physics import Composition, constants as const, equality_temperature, evaluate
-from physics.tracks import (BOUNDARY_FIELDS, CROSSING_COLUMNS, PAIR_ONSET, RHO_YE_RELATIVISTIC,
+from thermoplane.physics import Composition, constants as const, equality_temperature, evaluate
+from thermoplane.physics.tracks import (BOUNDARY_FIELDS, CROSSING_COLUMNS, PAIR_ONSET, RHO_YE_RELATIVISTIC,
                             boundary_fields, downsample, evaluate_track, find_crossings, track_report)
 
 CLASSICAL = dict(electrons="classical", ionization="full", coulomb=False, pairs=False)
@@ -35,7 +35,7 @@ def test_boundary_table():
 
 
 def test_physics_does_not_import_app():
-    code = "import sys, physics.tracks; print('app' in sys.modules)"
+    code = "import sys, thermoplane.physics.tracks; print('thermoplane.app' in sys.modules or 'dash' in sys.modules)"
     out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True)
     assert out.stdout.strip() == "False"
 

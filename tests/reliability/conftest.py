@@ -61,7 +61,7 @@ def gunicorn_server():
     port = free_port()
     url = f"http://127.0.0.1:{port}/"
     cmd = [sys.executable, "-m", "gunicorn", "--workers", "2", "--timeout", "120",
-           "--bind", f"127.0.0.1:{port}", "app.wsgi:server"]
+           "--bind", f"127.0.0.1:{port}", "thermoplane.app.wsgi:server"]
     proc = start_process(cmd, url, "gunicorn-reliability.log")
     try:
         wait_for_workers(proc.pid, 2)

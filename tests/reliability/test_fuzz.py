@@ -20,7 +20,7 @@ import pytest
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
-from app.upload import TableError, read_table
+from thermoplane.app.upload import TableError, read_table
 from tests.conftest import ROOT
 from tests.reliability import dash_client as dc
 
@@ -88,8 +88,8 @@ def test_read_table_damaged_gzip(tail):
 
 # ---------------------------------------------------------------- every callback
 def _setup():
-    from app.main import create_app
-    from app.security import harden
+    from thermoplane.app.main import create_app
+    from thermoplane.app.security import harden
     app = create_app()
     harden(app)
     client = app.server.test_client()

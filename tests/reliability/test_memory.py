@@ -5,8 +5,8 @@ from __future__ import annotations
 import numpy as np
 import pytest
 
-import physics as ph
-from physics import plane
+from thermoplane import physics as ph
+from thermoplane.physics import plane
 
 N_REQUESTS = 500
 BOUND_MB = 0.2          # room for about ten 20 x 20 planes

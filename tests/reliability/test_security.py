@@ -12,8 +12,8 @@ import numpy as np
 import pandas as pd
 import pytest
 
-from app import security
-from app.security import GENERIC_ERROR, SECURITY_HEADERS, body_limit, harden, neutralise_csv, safe_csv_cell
+from thermoplane.app import security
+from thermoplane.app.security import GENERIC_ERROR, SECURITY_HEADERS, body_limit, harden, neutralise_csv, safe_csv_cell
 from tests.reliability import dash_client as dc
 
 LEAKS = ("Traceback", "/work", ".py", "File \"")
@@ -21,7 +21,7 @@ LEAKS = ("Traceback", "/work", ".py", "File \"")
 
 @pytest.fixture(scope="module")
 def app():
-    from app.main import create_app
+    from thermoplane.app.main import create_app
     a = create_app()
     harden(a)
     return a
@@ -178,7 +178,7 @@ def test_gunicorn_refuses_an_oversized_upload_with_413(gunicorn_server):
 
 # ---------------------------------------------------------------- errors
 def test_forced_exception_is_a_generic_message_and_logged(caplog):
-    from app.main import create_app
+    from thermoplane.app.main import create_app
     a = create_app()
     harden(a)
 
@@ -202,7 +202,7 @@ def test_forced_exception_is_a_generic_message_and_logged(caplog):
 def test_exception_inside_a_callback_does_not_reach_the_browser(caplog):
     from dash import Input, Output
 
-    from app.main import create_app
+    from thermoplane.app.main import create_app
     a = create_app()
 
     # a callback that fails the way a bug would, with a server path in its message

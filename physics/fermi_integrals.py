@@ -3,7 +3,7 @@
 Which question this module answers: how many electrons (and how much pressure
 and energy) does a Fermi gas hold at a given degeneracy parameter ``eta`` and
 relativity parameter ``theta = k T / (m_e c^2)``?  Everything in
-:mod:`physics.electrons` is built from the three integrals evaluated here.
+:mod:`thermoplane.physics.electrons` is built from the three integrals evaluated here.
 
 The integral (Cox & Giuli 1968, *Principles of Stellar Structure*, ch. 24)
 

@@ -1,4 +1,4 @@
-"""Tests of physics.fermi_dirac against mpmath quadrature and polylogarithms."""
+"""Tests of thermoplane.physics.fermi_integrals (ph.fermi_dirac) against mpmath quadrature and polylogarithms."""
 
 import warnings
 
@@ -6,7 +6,7 @@ import mpmath as mp
 import numpy as np
 import pytest
 
-from physics.fermi_dirac import fermi_dirac, fermi_dirac_set
+from thermoplane.physics.fermi_integrals import fermi_dirac, fermi_dirac_set
 
 mp.mp.dps = 30
 KS = (0.5, 1.5, 2.5)
