@@ -11,11 +11,11 @@ from dataclasses import dataclass, fields
 
 import numpy as np
 
-from . import constants as const
-from .composition import Composition
-from .coulomb import coulomb_part, coupling_parameter
-from .matter import matter
-from .thermo import radiation, response
+from .. import constants as const
+from ..composition import Composition
+from ..coulomb import coulomb_part, coupling_parameter
+from ..matter import matter
+from ..thermo import radiation, response
 
 __all__ = ["ThermoState", "evaluate", "equality_temperature", "FIELD_UNITS", "FIELD_DESCRIPTIONS",
            "OPTIONS", "validate_options"]
