@@ -19,8 +19,8 @@ import numpy as np
 from .. import constants as const
 
 __all__ = ["SOURCE", "IONIZATION_TABLE", "SEMIEMPIRICAL", "THEORETICAL", "FROM_MEMORY", "Z_MAX",
-           "ionization_data", "ground_level_rule", "H2_CONSTANTS", "H2_D0_EV", "H2_FROM_MEMORY", "H2_SOURCE", "h2_levels",
-           "partition_from_levels", "h2_internal_partition"]
+           "ionization_data", "ground_level_rule", "H2_CONSTANTS", "H2_D0_EV", "H2_FROM_MEMORY", "H2_SOURCE",
+           "h2_levels", "partition_from_levels", "h2_internal_partition"]
 
 SOURCE = {
     "ionization": ("NIST Atomic Spectra Database, ionization energies: A. Kramida, Yu. Ralchenko, J. Reader "
@@ -401,7 +401,8 @@ def partition_from_levels(T, energy_K, weight):
         d ln Z / d ln T     = <E> / T
         d2 ln Z / d ln T2   = (<E^2> - <E>^2) / T^2 - <E> / T
     (both from differentiating the same sum; the variance is formed from deviations about the mean, so it has
-    no cancellation). Vectorised over T, any shape; levels x temperatures blocks of at most 8192 columns.
+    no cancellation). Vectorised over T, any shape; each distinct temperature is summed once (a map whose T
+    varies along one axis costs one row), in levels x temperatures blocks of at most 8192 columns.
 
     Returns
     -------
@@ -414,19 +415,19 @@ def partition_from_levels(T, energy_K, weight):
     w = np.asarray(weight, dtype=float)[:, None]
     if E.size == 0 or np.any(E < 0.0):
         raise ValueError("level energies must be a non-empty set counted from the lowest level (all >= 0)")
-    flat = T.ravel()
+    flat, inverse = np.unique(T.ravel(), return_inverse=True)
     out = np.empty((3, flat.size))
     for start in range(0, flat.size, _CHUNK):
         t = flat[None, start:start + _CHUNK]
-        terms = w * np.exp(-E / t)            # E >= 0: no overflow; underflow to 0 is harmless
-        Z = terms.sum(axis=0)                 # >= weight of a zero-energy level, never 0
         x = E / t
+        terms = w * np.exp(-x)                # E >= 0: no overflow; underflow to 0 is harmless
+        Z = terms.sum(axis=0)                 # >= weight of a zero-energy level, never 0
         mean = (terms * x).sum(axis=0) / Z
         var = (terms * (x - mean) ** 2).sum(axis=0) / Z
         out[0, start:start + _CHUNK] = np.log(Z)
         out[1, start:start + _CHUNK] = mean
         out[2, start:start + _CHUNK] = var - mean
-    return tuple(o.reshape(T.shape) for o in out)
+    return tuple(o[inverse.ravel()].reshape(T.shape) for o in out)
 
 
 _H2_E_K, _H2_W, _, _ = h2_levels()
