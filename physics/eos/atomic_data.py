@@ -361,8 +361,8 @@ _CHUNK = 8192                                # temperatures per block: bounds th
 def h2_levels(constants: dict | None = None) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
     """Bound rovibrational levels of H2 X 1Sigma_g+ from the Dunham-type term values.
 
-    E(v, J) = G(v) + F_v(J) with (Herzberg, Spectra of Diatomic Molecules, 1950, eqs. III,75 and III,141-144
-    in spirit; the usual expansion, from memory):
+    E(v, J) = G(v) + F_v(J), the usual Dunham-type expansion (Herzberg, Spectra of Diatomic Molecules, 1950,
+    ch. III; written from memory, equation numbers not checked):
         G(v)   = omega_e (v + 1/2) - omega_e x_e (v + 1/2)^2
         F_v(J) = B_v J(J+1) - D_e J^2 (J+1)^2,   B_v = B_e - alpha_e (v + 1/2)
     counted from E(0, 0). Kept: levels with E(v, J) - E(0, 0) < D0 (bound), G rising with v, and F_v rising
