@@ -15,7 +15,7 @@ from .. import constants as const
 from ..composition import Composition
 from ..coulomb import coulomb_part, coupling_parameter
 from ..matter import matter
-from ..thermo import radiation, response
+from ..thermo import Part, radiation, response
 
 __all__ = ["ThermoState", "evaluate", "equality_temperature", "FIELD_UNITS", "FIELD_DESCRIPTIONS",
            "OPTIONS", "validate_options"]
@@ -23,7 +23,7 @@ __all__ = ["ThermoState", "evaluate", "equality_temperature", "FIELD_UNITS", "FI
 #: Allowed values of each physics option; the first is the default.
 OPTIONS = {
     "electrons": ("fermi", "classical"),
-    "ionization": ("saha", "full"),
+    "ionization": ("saha", "full", "chemical"),
     "coulomb": (True, False),
     "pairs": (True, False),
 }
@@ -42,7 +42,7 @@ FIELD_UNITS = {
     "dP_drho": "dyn cm^-2 / (g cm^-3)", "dP_dT": "dyn cm^-2 K^-1",
     "dE_drho": "erg g^-1 / (g cm^-3)", "dS_dT": "erg g^-1 K^-2",
     "ion_H": "", "ion_He1": "", "ion_He2": "", "mean_Z": "",
-    "n_minus": "cm^-3", "n_plus": "cm^-3",
+    "n_minus": "cm^-3", "n_plus": "cm^-3", "h2_fraction": "",
 }
 
 FIELD_DESCRIPTIONS = {
@@ -62,6 +62,7 @@ FIELD_DESCRIPTIONS = {
     "ion_H": "fraction of hydrogen ionized", "ion_He1": "fraction of helium at least singly ionized",
     "ion_He2": "fraction of helium doubly ionized", "mean_Z": "mean free electrons per nucleus",
     "n_minus": "electron number density", "n_plus": "positron number density",
+    "h2_fraction": "fraction of hydrogen nuclei bound in H2 (chemical picture only; 0 otherwise)",
 }
 
 
@@ -104,6 +105,7 @@ class ThermoState:
     mean_Z: np.ndarray
     n_minus: np.ndarray
     n_plus: np.ndarray
+    h2_fraction: np.ndarray
 
     def as_dict(self) -> dict[str, np.ndarray]:
         return {f.name: getattr(self, f.name) for f in fields(self)}
@@ -181,6 +183,8 @@ def evaluate(rho, T, comp: Composition, **options) -> ThermoState:
     T = np.array(T, dtype=float)
 
     rad = radiation(rho, T, const.a_rad)
+    if opts["ionization"] == "chemical":
+        return _chemical_state(rho, T, comp, opts, rad)
     gas = matter(rho, T, comp, opts["electrons"], opts["ionization"], opts["pairs"])
     Gamma_e, Gamma = coupling_parameter(rho, T, comp.X, comp.A, comp.Z)
     gas_part = gas.part
@@ -200,7 +204,39 @@ def evaluate(rho, T, comp: Composition, **options) -> ThermoState:
         P_coul=P_coul, E=total.E, S=total.S, beta=gas_part.P / total.P, eta=gas.eta,
         ye=gas.n_net * const.m_u / rho, Gamma=Gamma, dP_drho=total.P_rho, dP_dT=total.P_T,
         dE_drho=total.E_rho, dS_dT=total.S_T, ion_H=gas.ion_H, ion_He1=gas.ion_He1, ion_He2=gas.ion_He2,
-        mean_Z=gas.mean_Z, n_minus=gas.n_minus, n_plus=gas.n_plus, **resp)
+        mean_Z=gas.mean_Z, n_minus=gas.n_minus, n_plus=gas.n_plus, h2_fraction=np.zeros_like(rho), **resp)
+
+
+def _chemical_state(rho, T, comp: Composition, opts: dict, rad: Part) -> ThermoState:
+    """The chemical picture (:mod:`thermoplane.physics.eos.equilibrium`) plus radiation as a ThermoState.
+
+    Experimental (see the README): points where the equilibrium is not found are NaN in every field.
+    """
+    from .equilibrium import solve_equilibrium
+    shape = rho.shape
+    r = solve_equilibrium(rho.ravel(), T.ravel(), comp, electrons=opts["electrons"], pairs=opts["pairs"],
+                          coulomb=opts["coulomb"])
+    rs = lambda a: np.reshape(a, shape)  # noqa: E731
+    bad = rs(r.status < 0)
+    rf, tf = rho, T
+    gas = Part(P=rs(r.P), E=rs(r.E), S=rs(r.S), P_rho=rs(r.P_lnrho) / rf, P_T=rs(r.P_lnT) / tf,
+               E_rho=rs(r.E_lnrho) / rf, E_T=rs(r.E_lnT) / tf, S_rho=rs(r.S_lnrho) / rf, S_T=rs(r.S_lnT) / tf)
+    total = gas + rad
+    with np.errstate(invalid="ignore", divide="ignore"):
+        resp = response(total, rho, T)
+    _, Gamma = coupling_parameter(rho, T, comp.X, comp.A, comp.Z)
+    n_nuc = rho * float(np.sum(comp.X / (comp.A * const.m_u)))
+    fields = dict(
+        rho=rho, T=T, P=total.P, P_gas=gas.P, P_rad=rad.P, P_ion=rs(r.P_ion), P_e=rs(r.P_e),
+        P_coul=rs(r.P_coul), E=total.E, S=total.S, beta=gas.P / total.P, eta=rs(r.eta),
+        ye=rs(r.n_e) * const.m_u / rho, Gamma=Gamma, dP_drho=total.P_rho, dP_dT=total.P_T,
+        dE_drho=total.E_rho, dS_dT=total.S_T, ion_H=rs(r.ion_H), ion_He1=rs(r.ion_He1), ion_He2=rs(r.ion_He2),
+        mean_Z=rs(r.n_e) / n_nuc, n_minus=rs(r.n_minus), n_plus=rs(r.n_plus), h2_fraction=rs(r.h2_fraction),
+        **resp)
+    for key, value in fields.items():
+        if key not in ("rho", "T", "Gamma", "P_rad"):
+            fields[key] = np.where(bad, np.nan, value)
+    return ThermoState(**fields)
 
 
 def equality_temperature(rho, comp: Composition, **options) -> np.ndarray:
