@@ -36,6 +36,8 @@ LINE_STYLES = {
     "he_ionization": ("#674ea7", "dashdot"),
     "ignition": ("#b45f06", "longdash"),
     "mass": ("#444444", "longdashdot"),
+    "nu_ignition": ("#990000", "solid"),
+    "capture": ("#1c4587", "dashdot"),
 }
 
 

@@ -14,6 +14,7 @@ from .. import physics as ph
 from ..physics import burning, plane, regimes
 
 from . import figures
+from .callbacks.layers import NU_PROCESS_CATEGORIES
 from .state import COLOR_CHOICES, DEFAULT_VIEW, UI_RESOLUTION, view_to_controls
 
 #: One-line explanations of the physics options (shown on hover).
@@ -132,7 +133,10 @@ def layers_panel(c: dict) -> html.Section:
                                for k in regimes.BOUNDARY_KEYS]),
         dcc.Checklist(id="map-overlays", value=c["overlays"], className="check column",
                       options=[{"label": " ignition contours", "value": "ignition"},
-                               {"label": " central lines of stars (n = 3 polytropes)", "value": "mass_lines"}]),
+                               {"label": " central lines of stars (n = 3 polytropes)", "value": "mass_lines"},
+                               {"label": " ignition curves ε_nuc = ε_ν (burning processes below)",
+                                "value": "nu_ignition"},
+                               {"label": " electron-capture thresholds (T = 0 electrons)", "value": "captures"}]),
         html.Label([html.Span("burning processes", className="field-label"),
                     dcc.Dropdown(id="map-processes", value=c["processes"], multi=True, className="dropdown",
                                  options=[{"label": burning.PROCESS_LABELS[p], "value": p}
@@ -255,7 +259,8 @@ def map_area() -> html.Div:
 
 def _labels() -> dict:
     return {"regimes": [r.label for r in regimes.REGIMES],
-            "quantities": {q.name: q.label for q in plane.QUANTITIES}}
+            "quantities": {q.name: q.label for q in plane.QUANTITIES},
+            "categories": {"nu_process": [label for label, _ in NU_PROCESS_CATEGORIES]}}
 
 
 def build_layout():

@@ -1,0 +1,102 @@
+"""Where cooling and captures take over: the neutrino ignition curves and the
+electron-capture thresholds as lines on the plane and as fields along a track.
+
+The question this module answers: where does nuclear heating first beat the
+neutrino losses (the ignition curve eps_nuc = eps_nu of each burning process,
+:mod:`thermoplane.physics.burning` against :mod:`thermoplane.physics.neutrinos`),
+and where does the T = 0 electron gas reach the capture threshold of each
+nuclide present (:mod:`thermoplane.physics.captures`)? The map draws these
+lines (:func:`grid_lines`, read off the cached plane); the track report lists
+where a track crosses them (:func:`track_fields`).
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+from . import burning, captures, neutrinos
+from .composition import Composition
+from .contours import level_line
+
+__all__ = ["IGNITION_NAMES", "ignition_label", "ignition_key", "capture_key", "labels", "grid_lines",
+           "track_fields"]
+
+#: Burning process -> the words of its ignition curve.
+IGNITION_NAMES = {"pp": "hydrogen (pp) ignition", "cno": "hydrogen (CNO) ignition",
+                  "triple_alpha": "helium ignition", "carbon": "carbon ignition"}
+
+
+def ignition_key(process: str) -> str:
+    return f"nu_ignition_{process}"
+
+
+def capture_key(nuclide: str) -> str:
+    return f"capture_{nuclide}"
+
+
+def ignition_label(process: str) -> str:
+    """"carbon ignition (ε_nuc = ε_ν)"."""
+    return f"{IGNITION_NAMES[process]} (ε_nuc = ε_ν)"
+
+
+def labels(comp: Composition | None = None) -> dict[str, str]:
+    """Key -> words for every line of this module (the capture lines of ``comp``'s nuclides)."""
+    out = {ignition_key(p): ignition_label(p) for p in burning.PROCESSES}
+    if comp is not None:
+        out.update({capture_key(t.nuclide): t.label for t in captures.thresholds(comp)})
+    return out
+
+
+def grid_lines(grid, comp: Composition, processes=(), ignition: bool = True, capture: bool = True):
+    """Lines on a computed plane: list of (key, label, log_rho, log_T, kind), kind "nu_ignition" or "capture".
+
+    The ignition curve of a process is the level set log eps_nuc - log eps_nu = 0 of the
+    plane's fields ``eps_<process>`` and ``log_eps_nu`` (blank where either is below the
+    plane's floor). A capture threshold is the vertical line log rho = log rho_thr, drawn
+    across the plane's temperature range when it lies inside the density range.
+    """
+    out = []
+    if ignition:
+        nu = grid.get("log_eps_nu")
+        for p in processes:
+            xs, ys = level_line(grid.log_rho, grid.log_T, grid.get(f"eps_{p}") - nu, 0.0)
+            if xs.size:
+                out.append((ignition_key(p), ignition_label(p), xs, ys, "nu_ignition"))
+    if capture:
+        lo, hi = float(grid.log_rho[0]), float(grid.log_rho[-1])
+        for t in captures.thresholds(comp):
+            x = float(np.log10(t.rho))
+            if lo < x < hi:
+                # many points along the line, so that a label finds a place inside the view
+                out.append((capture_key(t.nuclide), t.label, np.full(grid.log_T.size, x),
+                            np.array(grid.log_T, dtype=float), "capture"))
+    return out
+
+
+def track_fields(log_rho, log_T, comp: Composition, valid=None) -> tuple[dict, dict]:
+    """Fields whose crossing of their level marks each line along a track: (fields, levels).
+
+    ``nu_ignition_<process>``: log10(eps_nuc / eps_nu), level 0 (NaN where either rate is 0);
+    ``capture_<nuclide>``: log rho - log rho_thr, level 0, for the nuclides of ``comp``.
+    The composition is that of the whole track (a per-row X, Y is not followed here).
+    """
+    log_rho = np.asarray(log_rho, dtype=float)
+    log_T = np.asarray(log_T, dtype=float)
+    ok = np.isfinite(log_rho) & np.isfinite(log_T) & (np.abs(np.nan_to_num(log_rho)) <= 300) \
+        & (np.abs(np.nan_to_num(log_T)) <= 300)
+    if valid is not None:
+        ok &= np.asarray(valid, dtype=bool)
+    fields, levels = {}, {}
+    rho = 10.0 ** np.where(ok, log_rho, 0.0)
+    T = 10.0 ** np.where(ok, log_T, 7.0)
+    eps_nu = neutrinos.epsilon(rho, T, comp)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        log_nu = np.log10(eps_nu)
+        for p in burning.PROCESSES:
+            ratio = np.log10(burning.epsilon(rho, T, comp, p)) - log_nu
+            fields[ignition_key(p)] = np.where(ok & np.isfinite(ratio), ratio, np.nan)
+            levels[ignition_key(p)] = 0.0
+    for t in captures.thresholds(comp):
+        fields[capture_key(t.nuclide)] = np.where(ok, log_rho - np.log10(t.rho), np.nan)
+        levels[capture_key(t.nuclide)] = 0.0
+    return fields, levels
