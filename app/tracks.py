@@ -117,7 +117,7 @@ def enrich(df: pd.DataFrame, mapping: ColumnMapping, comp: Composition, **physic
     """
     data = apply_mapping(df, mapping)
     state_columns, crossings = track_report(data.log_rho, data.log_T, comp, age=data.age, valid=data.valid,
-                                            X=data.X, Y=data.Y, **physics_options)
+                                            X=data.X, Y=data.Y, frontiers=True, **physics_options)
     valid = np.isfinite(state_columns["P"].to_numpy())
     enriched = df.copy()
     enriched.attrs = {}

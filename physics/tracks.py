@@ -399,7 +399,7 @@ def boundary_fields(state, comp_or_ye=None) -> dict[str, np.ndarray]:
 
 
 def track_report(log_rho, log_T, comp: Composition, age=None, valid=None, X=None, Y=None,
-                 boundaries=None, frontiers: bool = True,
+                 boundaries=None, frontiers: bool = False,
                  **physics_options) -> tuple[pd.DataFrame, pd.DataFrame]:
     """Evaluate a track and find where it crosses each boundary.
 
@@ -414,7 +414,8 @@ def track_report(log_rho, log_T, comp: Composition, age=None, valid=None, X=None
     frontiers : bool
         Also list crossings of the ignition curves eps_nuc = eps_nu and of the
         electron-capture thresholds (keys and fields of
-        :func:`thermoplane.physics.frontiers.track_fields`; default True).
+        :func:`thermoplane.physics.frontiers.track_fields`; the app and the
+        CLI ask for them).
     **physics_options
         Passed to :func:`thermoplane.physics.eos.evaluate`.
 
