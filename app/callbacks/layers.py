@@ -77,9 +77,14 @@ def categories(name: str) -> list[tuple[str, str]]:
     raise ValueError(f"no categories for {name!r}")
 
 
+# vertical capture lines carry their label on their low-density side, so that it stays inside the plot
+_VERTICAL_LABEL = {"label": {"xanchor": "right", "xshift": -3}}
+
+
 def frontier_lines(grid, comp, view: dict) -> list[figures.Line]:
     """Ignition curves eps_nuc = eps_nu of the chosen burning processes and capture thresholds."""
-    return [figures.Line(key, label, x, y, style=kind, width=2.0 if kind == "nu_ignition" else 1.6)
+    return [figures.Line(key, label, x, y, style=kind, width=2.0 if kind == "nu_ignition" else 1.6,
+                         extra=_VERTICAL_LABEL if kind == "capture" else {})
             for key, label, x, y, kind in frontiers.grid_lines(
                 grid, comp, view.get("processes") or (), ignition=bool(view.get("nu_ignition")),
                 capture=bool(view.get("captures")))]
