@@ -150,32 +150,45 @@ def _log_pair(T, lam, nu, xi):
     l2 = lam * lam
     g = 1.0 - 13.04 * l2 + 133.5 * l2**2 + 1534.0 * l2**3 + 918.6 * l2**4
     # q_pair = (10.7480 lam^2 + 0.3967 lam^0.5 + 1.0050)^-1 [1 + nu (7.692e7 lam^3 + 9.715e6 lam^0.5)^-1]^-0.3
-    q = (1.0 / (10.7480 * l2 + 0.3967 * np.sqrt(lam) + 1.0050)
-         * (1.0 + nu / (7.692e7 * lam**3 + 9.715e6 * np.sqrt(lam))) ** -0.3)
+    sq = np.sqrt(lam)
+    q = np.exp(-0.3 * np.log1p(nu / (7.692e7 * lam * l2 + 9.715e6 * sq))) / (10.7480 * l2 + 0.3967 * sq + 1.0050)
     # Q_pair = 1/2 [sum+] {1 + (sum-/sum+) q_pair} g(lam) e^{-2/lam} f_pair
     return (math.log(0.5 * _SUM_PLUS) + np.log1p(_SUM_MINUS / _SUM_PLUS * q) + np.log(g)
             - 2.0 / lam + log_f)
 
 
-def _log_photo(T, lam, nu, xi):
-    """ln Q_photo (erg cm^-3 s^-1), Itoh 96 sec. 3."""
+def _photo_coefficients(T):
+    """a_0, a_1, a_2 and the exponent constant c of f_photo at temperatures T (1-D), Itoh 96 sec. 3."""
     band = np.where(T < 1e8, 0, np.where(T < 1e9, 1, 2))
     tau = np.log10(T) - (7.0 + band)
     tau = np.where(band == 0, np.maximum(tau, 0.0), tau)     # below 1e7 K: hold the 1e7 K coefficients
     c_exp = np.where(band == 0, 0.5654 + tau, 1.5654)
-    C = _PHOTO_C[band]                                       # (..., 3, 7)
-    D = _PHOTO_D[band]                                       # (..., 3, 5)
+    C = _PHOTO_C[band]                                       # (n, 3, 7)
+    D = _PHOTO_D[band]                                       # (n, 3, 5)
     k = np.arange(1, 6)
-    phase = (5.0 * math.pi / 3.0) * k * tau[..., None]        # (..., 5)
+    phase = (5.0 * math.pi / 3.0) * k * tau[:, None]          # (n, 5)
     # a_i = c_i0/2 + c_i6/2 cos(10 pi tau) + sum_k=1..5 [c_ik cos(5 pi k tau/3) + d_ik sin(5 pi k tau/3)]
-    a = (0.5 * C[..., 0] + 0.5 * C[..., 6] * np.cos(10.0 * math.pi * tau)[..., None]
-         + np.einsum("...ik,...k->...i", C[..., 1:6], np.cos(phase))
-         + np.einsum("...ik,...k->...i", D, np.sin(phase)))
+    a = (0.5 * C[..., 0] + 0.5 * C[..., 6] * np.cos(10.0 * math.pi * tau)[:, None]
+         + np.einsum("nik,nk->ni", C[..., 1:6], np.cos(phase))
+         + np.einsum("nik,nk->ni", D, np.sin(phase)))
+    lam = T / LAMBDA_TEMPERATURE
+    q_lam = 0.666 * (1.0 + 2.045 * lam) ** -2.066
+    poly = 1.875e8 * lam + 1.653e8 * lam**2 + 8.449e8 * lam**3 - 1.604e8 * lam**4
+    return a, c_exp, q_lam, poly
+
+
+def _log_photo(T, lam, nu, xi):
+    """ln Q_photo (erg cm^-3 s^-1), Itoh 96 sec. 3."""
+    # the coefficients depend on T alone: computed once per distinct temperature (a map has one per row)
+    T_unique, inverse = np.unique(T, return_inverse=True)
+    a_u, c_u, q_u, poly_u = _photo_coefficients(T_unique)
+    inverse = inverse.reshape(T.shape)
+    a = a_u[inverse]
+    c_exp, q_lam, poly = c_u[inverse], q_u[inverse], poly_u[inverse]
     num = a[..., 0] + a[..., 1] * xi + a[..., 2] * xi**2
     den = xi**3 + 6.290e-3 / lam + 7.483e-3 / lam**2 + 3.061e-4 / lam**3
     # q_photo = 0.666 (1 + 2.045 lam)^-2.066 [1 + nu / (1.875e8 lam + 1.653e8 lam^2 + 8.449e8 lam^3 - 1.604e8 lam^4)]^-1
-    poly = 1.875e8 * lam + 1.653e8 * lam**2 + 8.449e8 * lam**3 - 1.604e8 * lam**4
-    q = 0.666 * (1.0 + 2.045 * lam) ** -2.066 / (1.0 + nu / poly)
+    q = q_lam / (1.0 + nu / poly)
     # Q_photo = 1/2 [sum+] {1 - (sum-/sum+) q_photo} nu lam^5 f_photo, f_photo = num e^{-c xi} / den
     with np.errstate(divide="ignore"):
         log_num = np.log(np.maximum(num, 0.0))
@@ -187,8 +200,10 @@ def _log_plasma(T, lam, nu):
     """ln Q_plasma (erg cm^-3 s^-1), Itoh 96 sec. 4."""
     # gamma^2 = 1.1095e11 nu / (T^2 [1 + (1.019e-6 nu)^(2/3)]^(1/2)) = (hbar omega_0 / kT)^2
     gamma = np.sqrt(1.1095e11 * nu / (T * T * np.sqrt(1.0 + np.cbrt(1.019e-6 * nu) ** 2)))
-    f_T = 2.4 + 0.6 * np.sqrt(gamma) + 0.51 * gamma + 1.25 * gamma**1.5
-    f_L = (8.6 * gamma**2 + 1.35 * gamma**3.5) / (225.0 - 17.0 * gamma + gamma**2)
+    sg = np.sqrt(gamma)
+    g2 = gamma * gamma
+    f_T = 2.4 + 0.6 * sg + 0.51 * gamma + 1.25 * gamma * sg
+    f_L = (8.6 * g2 + 1.35 * g2 * gamma * sg) / (225.0 - 17.0 * gamma + g2)
     # f_xy correction, applied for |x| <= 0.7 and y >= 0
     log_2nu = np.log10(2.0 * nu)
     log_T = np.log10(T)
