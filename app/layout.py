@@ -136,7 +136,8 @@ def layers_panel(c: dict) -> html.Section:
                                {"label": " central lines of stars (n = 3 polytropes)", "value": "mass_lines"},
                                {"label": " ignition curves ε_nuc = ε_ν (burning processes below)",
                                 "value": "nu_ignition"},
-                               {"label": " electron-capture thresholds (T = 0 electrons)", "value": "captures"}]),
+                               {"label": " electron-capture thresholds (T = 0 electrons; nuclides ≥ 1 % by mass)",
+                                "value": "captures"}]),
         html.Label([html.Span("burning processes", className="field-label"),
                     dcc.Dropdown(id="map-processes", value=c["processes"], multi=True, className="dropdown",
                                  options=[{"label": burning.PROCESS_LABELS[p], "value": p}

@@ -99,7 +99,7 @@ def threshold_density(nuclide: str, comp: Composition) -> float:
     --------
     >>> from thermoplane.physics import Composition
     >>> f"{threshold_density('Mg-24', Composition({'O-16': 0.6, 'Ne-20': 0.3, 'Mg-24': 0.1})):.2e}"
-    '3.17e+09'
+    '3.16e+09'
     """
     if not isinstance(comp, Composition):
         raise ValueError(f"comp must be a Composition, got {type(comp).__name__}")
@@ -117,16 +117,17 @@ def capture_label(nuclide: str) -> str:
     return f"e⁻ capture on {mass.translate(_SUPERSCRIPT)}{symbol}"
 
 
-def thresholds(comp: Composition) -> list[CaptureThreshold]:
+def thresholds(comp: Composition, min_fraction: float = 0.0) -> list[CaptureThreshold]:
     """The capture threshold of every nuclide of ``comp`` with a known daughter, by rising density.
 
-    Nuclides that capture at any density (threshold 0) are left out: they draw no line.
+    Nuclides with a mass fraction below ``min_fraction``, and nuclides that capture at any
+    density (threshold 0), are left out: they draw no line.
     """
     if not isinstance(comp, Composition):
         raise ValueError(f"comp must be a Composition, got {type(comp).__name__}")
     out = []
-    for name in comp.names:
-        if name not in CAPTURE_DAUGHTERS or name not in NUCLIDES:
+    for name, fraction in zip(comp.names, comp.X):
+        if name not in CAPTURE_DAUGHTERS or name not in NUCLIDES or fraction < min_fraction:
             continue
         delta, e_thr = threshold_energy(name)
         rho = threshold_density(name, comp)

@@ -18,8 +18,12 @@ from . import burning, captures, neutrinos
 from .composition import Composition
 from .contours import level_line
 
-__all__ = ["IGNITION_NAMES", "ignition_label", "ignition_key", "capture_key", "labels", "grid_lines",
+__all__ = ["MIN_CAPTURE_FRACTION", "IGNITION_NAMES", "ignition_label", "ignition_key", "capture_key", "labels", "grid_lines",
            "track_fields"]
+
+#: Capture lines are drawn (and crossed by tracks) for nuclides of at least this mass
+#: fraction: trace metals would fill the dense end of the map with lines. Our choice.
+MIN_CAPTURE_FRACTION = 0.01
 
 #: Burning process -> the words of its ignition curve.
 IGNITION_NAMES = {"pp": "hydrogen (pp) ignition", "cno": "hydrogen (CNO) ignition",
@@ -40,10 +44,10 @@ def ignition_label(process: str) -> str:
 
 
 def labels(comp: Composition | None = None) -> dict[str, str]:
-    """Key -> words for every line of this module (the capture lines of ``comp``'s nuclides)."""
+    """Key -> words for every line of this module (the capture lines of ``comp``'s main nuclides)."""
     out = {ignition_key(p): ignition_label(p) for p in burning.PROCESSES}
     if comp is not None:
-        out.update({capture_key(t.nuclide): t.label for t in captures.thresholds(comp)})
+        out.update({capture_key(t.nuclide): t.label for t in captures.thresholds(comp, MIN_CAPTURE_FRACTION)})
     return out
 
 
@@ -52,8 +56,9 @@ def grid_lines(grid, comp: Composition, processes=(), ignition: bool = True, cap
 
     The ignition curve of a process is the level set log eps_nuc - log eps_nu = 0 of the
     plane's fields ``eps_<process>`` and ``log_eps_nu`` (blank where either is below the
-    plane's floor). A capture threshold is the vertical line log rho = log rho_thr, drawn
-    across the plane's temperature range when it lies inside the density range.
+    plane's floor). A capture threshold is the vertical line log rho = log rho_thr of a
+    nuclide with mass fraction >= :data:`MIN_CAPTURE_FRACTION`, drawn across the plane's
+    temperature range when it lies inside the density range.
     """
     out = []
     if ignition:
@@ -64,7 +69,7 @@ def grid_lines(grid, comp: Composition, processes=(), ignition: bool = True, cap
                 out.append((ignition_key(p), ignition_label(p), xs, ys, "nu_ignition"))
     if capture:
         lo, hi = float(grid.log_rho[0]), float(grid.log_rho[-1])
-        for t in captures.thresholds(comp):
+        for t in captures.thresholds(comp, MIN_CAPTURE_FRACTION):
             x = float(np.log10(t.rho))
             if lo < x < hi:
                 # many points along the line, so that a label finds a place inside the view
@@ -77,7 +82,8 @@ def track_fields(log_rho, log_T, comp: Composition, valid=None) -> tuple[dict, d
     """Fields whose crossing of their level marks each line along a track: (fields, levels).
 
     ``nu_ignition_<process>``: log10(eps_nuc / eps_nu), level 0 (NaN where either rate is 0);
-    ``capture_<nuclide>``: log rho - log rho_thr, level 0, for the nuclides of ``comp``.
+    ``capture_<nuclide>``: log rho - log rho_thr, level 0, for the nuclides of ``comp`` with mass
+    fraction >= :data:`MIN_CAPTURE_FRACTION`.
     The composition is that of the whole track (a per-row X, Y is not followed here).
     """
     log_rho = np.asarray(log_rho, dtype=float)
@@ -96,7 +102,7 @@ def track_fields(log_rho, log_T, comp: Composition, valid=None) -> tuple[dict, d
             ratio = np.log10(burning.epsilon(rho, T, comp, p)) - log_nu
             fields[ignition_key(p)] = np.where(ok & np.isfinite(ratio), ratio, np.nan)
             levels[ignition_key(p)] = 0.0
-    for t in captures.thresholds(comp):
+    for t in captures.thresholds(comp, MIN_CAPTURE_FRACTION):
         fields[capture_key(t.nuclide)] = np.where(ok, log_rho - np.log10(t.rho), np.nan)
         levels[capture_key(t.nuclide)] = 0.0
     return fields, levels

@@ -314,7 +314,7 @@ def epsilon(rho, T, comp: Composition, process: str = "total") -> np.ndarray:
     --------
     >>> from thermoplane.physics import Composition
     >>> co = Composition({"C-12": 0.5, "O-16": 0.5})
-    >>> 1e3 < float(epsilon(1e5, 1e9, co, "pair")) < 1e7
+    >>> 1e8 < float(epsilon(1e5, 1e9, co, "pair")) < 1e10
     True
     """
     if process not in PROCESSES + ("total",):

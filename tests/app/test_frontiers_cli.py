@@ -23,3 +23,15 @@ def test_track_cli_lists_ignition_and_capture_crossings(tmp_path):
     r = run("--json")
     keys = [c["boundary"] for c in json.loads(r.stdout)["crossings"]]
     assert "nu_ignition_carbon" in keys and "capture_Mg-24" in keys
+
+
+def test_point_cli_shows_neutrino_losses():
+    r = subprocess.run([sys.executable, "-m", "thermoplane.app.cli", "point", "--rho", "1e6", "--T", "3e8",
+                        "--mix", MIX, "--json"], capture_output=True, text=True, timeout=300)
+    assert r.returncode == 0, r.stderr
+    nu = json.loads(r.stdout)["neutrino_losses"]
+    assert nu["total"] == sum(nu[p] for p in ("pair", "photo", "plasma", "bremsstrahlung"))
+    assert nu["plasma"] > nu["pair"]
+    r = subprocess.run([sys.executable, "-m", "thermoplane.app.cli", "point", "--rho", "1e6", "--T", "3e8",
+                        "--mix", MIX], capture_output=True, text=True, timeout=300)
+    assert "eps_nu_plasma" in r.stdout

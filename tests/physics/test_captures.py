@@ -91,3 +91,8 @@ def test_bad_input():
         threshold_density("He-4", pure("He-4"))
     with pytest.raises(ValueError, match="Composition"):
         threshold_density("C-12", {"C-12": 1.0})
+
+
+def test_minor_nuclides_can_be_left_out():
+    comp = Composition.from_xyz(0.7, 0.28, 0.02)                 # metals each well below 1 % by mass
+    assert [t.nuclide for t in thresholds(comp, min_fraction=0.01)] == ["H-1"]
