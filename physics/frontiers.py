@@ -18,15 +18,24 @@ from . import burning, captures, neutrinos
 from .composition import Composition
 from .contours import level_line
 
-__all__ = ["MIN_CAPTURE_FRACTION", "IGNITION_NAMES", "ignition_label", "ignition_key", "capture_key", "labels", "grid_lines",
+__all__ = ["MIN_CAPTURE_FRACTION", "IGNITION_FLOOR", "IGNITION_NAMES", "ignition_label", "ignition_key", "capture_key", "labels", "grid_lines",
            "track_fields"]
 
 #: Capture lines are drawn (and crossed by tracks) for nuclides of at least this mass
 #: fraction: trace metals would fill the dense end of the map with lines. Our choice.
 MIN_CAPTURE_FRACTION = 0.01
 
-#: Burning process -> the words of its ignition curve.
-IGNITION_NAMES = {"pp": "hydrogen (pp) ignition", "cno": "hydrogen (CNO) ignition",
+#: Ignition curves are drawn only where eps_nu (= eps_nuc on the curve) is at least this,
+#: erg g^-1 s^-1: below it neither rate changes a star's heat content within a Hubble time
+#: at the temperatures concerned, and the two tiny rates cross along meaningless lines
+#: (for hydrogen near 10^5 K). Our choice, no source.
+IGNITION_FLOOR = 1e-2
+
+#: Burning process -> the words of its curve eps_nuc = eps_nu. Helium and carbon ignite where
+#: nuclear heating first beats the neutrino losses; hydrogen burns at 10^6.5-10^7.5 K where
+#: the losses are negligible (< 1e-2 erg/g/s), so its curve only marks where neutrino losses
+#: take over again at 10^8 K and above: it is not called an ignition curve.
+IGNITION_NAMES = {"pp": "pp chain:", "cno": "CNO cycle:",
                   "triple_alpha": "helium ignition", "carbon": "carbon ignition"}
 
 
@@ -39,8 +48,9 @@ def capture_key(nuclide: str) -> str:
 
 
 def ignition_label(process: str) -> str:
-    """"carbon ignition (ε_nuc = ε_ν)"."""
-    return f"{IGNITION_NAMES[process]} (ε_nuc = ε_ν)"
+    """"carbon ignition (ε_nuc = ε_ν)", "pp chain: ε_nuc = ε_ν"."""
+    name = IGNITION_NAMES[process]
+    return f"{name} ε_nuc = ε_ν" if name.endswith(":") else f"{name} (ε_nuc = ε_ν)"
 
 
 def labels(comp: Composition | None = None) -> dict[str, str]:
@@ -55,14 +65,14 @@ def grid_lines(grid, comp: Composition, processes=(), ignition: bool = True, cap
     """Lines on a computed plane: list of (key, label, log_rho, log_T, kind), kind "nu_ignition" or "capture".
 
     The ignition curve of a process is the level set log eps_nuc - log eps_nu = 0 of the
-    plane's fields ``eps_<process>`` and ``log_eps_nu`` (blank where either is below the
-    plane's floor). A capture threshold is the vertical line log rho = log rho_thr of a
+    plane's fields ``eps_<process>`` and ``log_eps_nu``, where eps_nu >= :data:`IGNITION_FLOOR`. A capture threshold is the vertical line log rho = log rho_thr of a
     nuclide with mass fraction >= :data:`MIN_CAPTURE_FRACTION`, drawn across the plane's
     temperature range when it lies inside the density range.
     """
     out = []
     if ignition:
         nu = grid.get("log_eps_nu")
+        nu = np.where(nu >= np.log10(IGNITION_FLOOR), nu, np.nan)
         for p in processes:
             xs, ys = level_line(grid.log_rho, grid.log_T, grid.get(f"eps_{p}") - nu, 0.0)
             if xs.size:
@@ -81,7 +91,8 @@ def grid_lines(grid, comp: Composition, processes=(), ignition: bool = True, cap
 def track_fields(log_rho, log_T, comp: Composition, valid=None) -> tuple[dict, dict]:
     """Fields whose crossing of their level marks each line along a track: (fields, levels).
 
-    ``nu_ignition_<process>``: log10(eps_nuc / eps_nu), level 0 (NaN where either rate is 0);
+    ``nu_ignition_<process>``: log10(eps_nuc / eps_nu), level 0 (NaN where either rate is 0 or
+    eps_nu < :data:`IGNITION_FLOOR`);
     ``capture_<nuclide>``: log rho - log rho_thr, level 0, for the nuclides of ``comp`` with mass
     fraction >= :data:`MIN_CAPTURE_FRACTION`.
     The composition is that of the whole track (a per-row X, Y is not followed here).
@@ -100,7 +111,8 @@ def track_fields(log_rho, log_T, comp: Composition, valid=None) -> tuple[dict, d
         log_nu = np.log10(eps_nu)
         for p in burning.PROCESSES:
             ratio = np.log10(burning.epsilon(rho, T, comp, p)) - log_nu
-            fields[ignition_key(p)] = np.where(ok & np.isfinite(ratio), ratio, np.nan)
+            keep = ok & np.isfinite(ratio) & (eps_nu >= IGNITION_FLOOR)
+            fields[ignition_key(p)] = np.where(keep, ratio, np.nan)
             levels[ignition_key(p)] = 0.0
     for t in captures.thresholds(comp, MIN_CAPTURE_FRACTION):
         fields[capture_key(t.nuclide)] = np.where(ok, log_rho - np.log10(t.rho), np.nan)
