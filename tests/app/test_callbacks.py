@@ -297,3 +297,10 @@ def test_neutrino_shadings_and_lines_on_the_map():
     assert names == [label for label, _ in layers.NU_PROCESS_CATEGORIES]
     codes = np.asarray(heatmap(fig).z, dtype=float)
     assert set(np.unique(codes[np.isfinite(codes)])) <= {0.0, 1.0, 2.0, 3.0}
+
+
+def test_grid_csv_names_the_dominant_neutrino_process():
+    grid = plane.plane_grid(ph.Composition({"C-12": 1.0}), n_rho=20, n_T=20, **FAST)
+    rows = export.grid_csv(grid, "nu_process", "dominant neutrino process").splitlines()[2:]
+    values = {r.split(",")[2] for r in rows}
+    assert values <= {"pair", "photo", "plasma", "bremsstrahlung", ""} and "pair" in values
