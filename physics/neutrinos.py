@@ -21,7 +21,10 @@ coefficients below were written down from memory of it and checked against
 limits derived independently from first principles in
 tests/physics/test_neutrinos.py (the pair process of non-relativistic,
 non-degenerate pairs to 2 %, the plasma process of classical plasmons to 3 %,
-the plasma-frequency constants to 1 %). Equation numbers are given by section.
+the plasma-frequency constants to 1 %; the 36 recalled photo coefficients of the
+two upper temperature bands, fitted separately by Itoh 96, join at 10⁹ K to
+5e-5, which a wrong digit would break). Equation numbers could not be checked:
+the formulae are cited by section.
 
 Bremsstrahlung: Itoh 96 (sec. 5) gives per-nucleus tables of coefficients for
 the liquid and crystal phases that could not be recalled reliably. This
@@ -29,13 +32,14 @@ module uses instead the closed formula for degenerate, relativistic electrons
 scattered by nuclei of Haensel, Kaminker & Yakovlev (1996, A&A 314, 328) in
 the form of Kaminker et al. (1999, A&A 343, 1009):
 Q = 8 π G_F² Z² e⁴ C₊² (kT)⁶ n_i L / (567 ħ⁹ c⁸), with the Coulomb logarithm
-L = 1 (the published fits give L between about 0.3 and 1 in the liquid;
-Kaminker et al. 1999 find the crystal close to the liquid), i.e. an upper
-estimate. It is valid for degenerate, relativistic electrons; where the
+L = 1 (the published fits give L between about 0.3 and 1 in the liquid, from
+memory; Kaminker et al. 1999 state that the solid phase does not differ
+significantly from the liquid), i.e. an upper estimate. It is valid for degenerate, relativistic electrons; where the
 electrons are not relativistic (x_F < 1, rho/mu_e < 9.74e5 g cm⁻³) or not
 degenerate (kT above the Fermi kinetic energy of the T = 0 gas) it is set to
 zero here (our choice, no source; it leaves a step in the bremsstrahlung map at
-x_F = 1 where the other processes are weaker still, below about 10⁸ K).
+x_F = 1, and left of it, below about 10⁷ K, the plasma process is shown as
+dominant where the bremsstrahlung of non-relativistic electrons may be larger).
 
 Validity (Itoh 96, as recalled): pair 10⁸ K <= T <= 10¹¹ K; photo and plasma
 10⁷ K <= T <= 10¹¹ K; all for 1 <= rho/mu_e <= 10¹⁴ g cm⁻³ (photo to 10¹¹).
