@@ -23,7 +23,7 @@ tests/physics/test_neutrinos.py (the pair process of non-relativistic,
 non-degenerate pairs to 2 %, the plasma process of classical plasmons to 3 %,
 the plasma-frequency constants to 1 %; the 36 recalled photo coefficients of the
 two upper temperature bands, fitted separately by Itoh 96, join at 10⁹ K to
-5e-5, which a wrong digit would break). Equation numbers could not be checked:
+3e-4, which a misremembered leading coefficient would break). Equation numbers could not be checked:
 the formulae are cited by section.
 
 Bremsstrahlung: Itoh 96 (sec. 5) gives per-nucleus tables of coefficients for
