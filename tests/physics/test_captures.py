@@ -60,7 +60,7 @@ def test_threshold_densities_against_the_textbook_table():
     # Shapiro & Teukolsky (1983), Black Holes, White Dwarfs and Neutron Stars, table of
     # neutronization thresholds (from memory), pure matter of each nuclide, no lattice correction.
     table = {"H-1": 1.22e7, "C-12": 3.90e10, "O-16": 1.90e10, "Ne-20": 6.22e9, "Mg-24": 3.15e9,
-             "Fe-56": 1.14e9}
+             "Fe-56": 1.14e9, "Si-28": 1.97e9, "S-32": 1.47e8}
     for name, rho in table.items():
         assert threshold_density(name, pure(name)) == pytest.approx(rho, rel=0.02), name
 
