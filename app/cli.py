@@ -88,16 +88,22 @@ def cmd_point(args) -> int:
     state = ph.evaluate(args.rho, args.T, comp, **_physics_options(args))
     values = state.at(())
     regime, modifiers = describe(state, comp)
+    from ..physics import neutrinos
+    nu = {k: float(v) for k, v in neutrinos.epsilon_parts(args.rho, args.T, comp).items()}
     if args.json:
         out = {"composition": comp.to_dict(), "mu": comp.mu, "mu_e": comp.mu_e, "mu_ion": comp.mu_ion,
                "regime": regime, "modifiers": modifiers,
-               "state": values, "units": {k: ph.FIELD_UNITS[k] for k in values}}
+               "state": values, "units": {k: ph.FIELD_UNITS[k] for k in values},
+               "neutrino_losses": nu, "neutrino_losses_unit": "erg g^-1 s^-1"}
         print(json.dumps(out, indent=2))
     else:
         print(f"composition: {comp!r}  (mu = {comp.mu:.5g}, mu_e = {comp.mu_e:.5g}, mu_ion = {comp.mu_ion:.5g})")
         print(f"regime: {regime}" + (f"; {', '.join(modifiers)}" if modifiers else ""))
         for name, value in values.items():
             print(f"  {name:<12} {value:>14.6g}  {ph.FIELD_UNITS[name]:<22} {ph.FIELD_DESCRIPTIONS[name]}")
+        print("neutrino losses (Itoh et al. 1996 fits; bremsstrahlung after Kaminker et al. 1999):")
+        for name in ("total",) + neutrinos.PROCESSES:
+            print(f"  {'eps_nu' if name == 'total' else 'eps_nu_' + name:<22} {nu[name]:>14.6g}  erg g^-1 s^-1")
     return 0
 
 

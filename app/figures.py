@@ -36,6 +36,8 @@ LINE_STYLES = {
     "he_ionization": ("#674ea7", "dashdot"),
     "ignition": ("#b45f06", "longdash"),
     "mass": ("#444444", "longdashdot"),
+    "nu_ignition": ("#990000", "solid"),
+    "capture": ("#1c4587", "dashdot"),
 }
 
 
@@ -49,7 +51,7 @@ class Line:
     log_T: np.ndarray
     style: str = ""                    # key into LINE_STYLES; defaults to key
     width: float = 2.0
-    extra: dict = field(default_factory=dict)
+    extra: dict = field(default_factory=dict)        # "label": annotation settings that replace the defaults
 
 
 # Label boxes are placed in axis fractions (0..1) with a size estimated from
@@ -188,10 +190,10 @@ def plane_figure(log_rho: np.ndarray, log_T: np.ndarray, z: np.ndarray, *, z_lab
                            hovertemplate=line.label + "<br>log ρ = %{x:.2f}, log T = %{y:.2f}<extra></extra>",
                            showlegend=False, meta=line.key))
         if where is not None:
-            notes.append(dict(x=where[0], y=where[1], text=line.label, showarrow=False,
+            notes.append(dict(dict(x=where[0], y=where[1], text=line.label, showarrow=False,
                               font=dict(size=font - 1, color=colour),
                               bgcolor="rgba(255,255,255,0.85)", bordercolor=colour, borderwidth=1,
-                              borderpad=2, yshift=12, name=f"label:{line.key}"))
+                              borderpad=2, yshift=12, name=f"label:{line.key}"), **line.extra.get("label", {})))
     traces.extend(extra_traces)
     fig = go.Figure(data=traces, layout=dict(annotations=notes))
     axis = dict(showgrid=False, zeroline=False, ticks="outside", mirror=True, showline=True,

@@ -14,6 +14,7 @@ from .. import physics as ph
 from ..physics import burning, plane, regimes
 
 from . import figures
+from .callbacks.layers import NU_PROCESS_CATEGORIES
 from .state import COLOR_CHOICES, DEFAULT_VIEW, UI_RESOLUTION, view_to_controls
 
 #: One-line explanations of the physics options (shown on hover).
@@ -132,7 +133,11 @@ def layers_panel(c: dict) -> html.Section:
                                for k in regimes.BOUNDARY_KEYS]),
         dcc.Checklist(id="map-overlays", value=c["overlays"], className="check column",
                       options=[{"label": " ignition contours", "value": "ignition"},
-                               {"label": " central lines of stars (n = 3 polytropes)", "value": "mass_lines"}]),
+                               {"label": " central lines of stars (n = 3 polytropes)", "value": "mass_lines"},
+                               {"label": " ignition curves ε_nuc = ε_ν (burning processes below)",
+                                "value": "nu_ignition"},
+                               {"label": " electron-capture thresholds (T = 0 electrons; nuclides ≥ 1 % by mass)",
+                                "value": "captures"}]),
         html.Label([html.Span("burning processes", className="field-label"),
                     dcc.Dropdown(id="map-processes", value=c["processes"], multi=True, className="dropdown",
                                  options=[{"label": burning.PROCESS_LABELS[p], "value": p}
@@ -202,8 +207,18 @@ def about_physics() -> list:
           "alpha) and Caughlan & Fowler (1988; carbon), with weak screening (Salpeter 1954). The central "
           "lines of stars are n = 3 polytropes, P_c = 0.364 G M^(2/3) ρ_c^(4/3), solved with the full "
           "equation of state."),
+        P("Neutrinos and captures. Neutrino losses ε_ν: pair, photo and plasma neutrinos from the fits of "
+          "Itoh, Hayashi, Nishikawa & Kohyama (1996, ApJS 102, 411), valid for about 10⁷–10¹¹ K (pair from "
+          "10⁸ K) and 1 ≤ ρ/μ_e ≤ 10¹⁴ g cm⁻³, extrapolated outside; electron–nucleus bremsstrahlung from the "
+          "degenerate-electron formula of Kaminker et al. (1999, A&A 343, 1009) with Coulomb logarithm 1 (an "
+          "upper estimate), counted only for relativistic degenerate electrons, so the bremsstrahlung region "
+          "starts with a step at x_F = 1. No recombination or Urca neutrinos. The curves ε_nuc = ε_ν are drawn "
+          "where ε_ν ≥ 10⁻² erg g⁻¹ s⁻¹. Electron-capture thresholds (A, Z) → (A, Z−1) of nuclides with at "
+          "least 1 % of the mass: where the chemical potential of the T = 0 electron gas reaches "
+          "Δ_atomic + m_e c² (AME2020 masses); no Coulomb lattice shift, no thermal tail, first capture only."),
         P("Where it fails. No molecules or neutral metals (below about 10⁴ K at low density the results "
-          "are approximate); no neutronization, nuclear statistical equilibrium or neutrino losses; the "
+          "are approximate); no neutronization in the equation of state (only its thresholds are drawn) and "
+          "no nuclear statistical equilibrium; the "
           "Coulomb and pressure-ionization treatments are approximate near ρ ~ 1–10 g cm⁻³ at low T (inside "
           "the pressure-ionization band the thermodynamic identities hold only approximately); plain Saha "
           "leaves a few per cent of H neutral near ρ ~ 1 g cm⁻³, T ~ 3×10⁶ K, where real matter is ionized; "
@@ -255,7 +270,8 @@ def map_area() -> html.Div:
 
 def _labels() -> dict:
     return {"regimes": [r.label for r in regimes.REGIMES],
-            "quantities": {q.name: q.label for q in plane.QUANTITIES}}
+            "quantities": {q.name: q.label for q in plane.QUANTITIES},
+            "categories": {"nu_process": [label for label, _ in NU_PROCESS_CATEGORIES]}}
 
 
 def build_layout():

@@ -59,6 +59,8 @@ DEFAULT_VIEW = {
     "levels": "1, 1e3",
     "masses": "0.1, 1, 10",
     "mass_lines": True,
+    "nu_ignition": True,
+    "captures": True,
     "presentation": False,
 }
 
@@ -93,7 +95,7 @@ def view_to_controls(view: dict) -> dict:
         "T_lo": v["log_T"][0], "T_hi": v["log_T"][1],
         "resolution": v["resolution"], "quantity": v["quantity"], "colorscale": v["colorscale"],
         "layers": list(v["layers"]),
-        "overlays": [k for k in ("ignition", "mass_lines") if v[k]],
+        "overlays": [k for k in ("ignition", "mass_lines", "nu_ignition", "captures") if v[k]],
         "processes": list(v["processes"]), "levels": v["levels"], "masses": v["masses"],
         "presentation": bool(v["presentation"]),
     }
@@ -132,6 +134,8 @@ def controls_to_view(**c) -> dict:
         "layers": tuple(k for k in regimes.BOUNDARY_KEYS if k in (c.get("layers") or ())),
         "ignition": "ignition" in (c.get("overlays") or ()),
         "mass_lines": "mass_lines" in (c.get("overlays") or ()),
+        "nu_ignition": "nu_ignition" in (c.get("overlays") or ()),
+        "captures": "captures" in (c.get("overlays") or ()),
         "processes": tuple(p for p in PROCESSES if p in (c.get("processes") or ())),
         "levels": c.get("levels") or "", "masses": c.get("masses") or "",
         "presentation": bool(c.get("presentation")),

@@ -35,7 +35,7 @@ from dataclasses import asdict
 import numpy as np
 import pandas as pd
 
-from ..physics import regimes, structure
+from ..physics import frontiers, regimes, structure
 from ..physics.composition import Composition
 from ..physics.tracks import TrackState, downsample, track_report
 
@@ -117,7 +117,7 @@ def enrich(df: pd.DataFrame, mapping: ColumnMapping, comp: Composition, **physic
     """
     data = apply_mapping(df, mapping)
     state_columns, crossings = track_report(data.log_rho, data.log_T, comp, age=data.age, valid=data.valid,
-                                            X=data.X, Y=data.Y, **physics_options)
+                                            X=data.X, Y=data.Y, frontiers=True, **physics_options)
     valid = np.isfinite(state_columns["P"].to_numpy())
     enriched = df.copy()
     enriched.attrs = {}
@@ -125,7 +125,8 @@ def enrich(df: pd.DataFrame, mapping: ColumnMapping, comp: Composition, **physic
         col = _computed_name(name, df.columns)
         enriched[col] = _regime(state_columns, valid) if name == "regime" else state_columns[name].to_numpy()
     crossings = crossings.copy()
-    crossings["label"] = [regimes.BOUNDARY_LABELS.get(k, k) for k in crossings["boundary"]]
+    names = {**regimes.BOUNDARY_LABELS, **frontiers.labels(comp)}
+    crossings["label"] = [names.get(k, k) for k in crossings["boundary"]]
     return enriched, crossings, data
 
 

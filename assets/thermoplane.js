@@ -17,7 +17,8 @@ window.dash_clientside = Object.assign({}, window.dash_clientside, {
       }
       if (q && q !== "regime" && p.z !== undefined && p.z !== null) {
         var z = Number(p.z);
-        parts.push((labels.quantities[q] || q) + " = " + (isFinite(z) ? z.toPrecision(4) : "—"));
+        var names = labels.categories ? labels.categories[q] : null;
+        parts.push((labels.quantities[q] || q) + " = " + (!isFinite(z) ? "—" : (names && names[Math.round(z)] !== undefined ? names[Math.round(z)] : z.toPrecision(4))));
       }
       if (code !== undefined && code !== null && labels.regimes[code] !== undefined) {
         parts.push("regime: " + labels.regimes[code]);

@@ -18,7 +18,7 @@ from typing import Mapping
 
 import numpy as np
 
-__all__ = ["Nuclide", "NUCLIDES", "METAL_MIXTURES", "Composition", "parse_mix"]
+__all__ = ["Nuclide", "NUCLIDES", "CAPTURE_DAUGHTERS", "METAL_MIXTURES", "Composition", "parse_mix"]
 
 
 @dataclass(frozen=True)
@@ -57,6 +57,35 @@ _TABLE = [
 
 #: Known nuclides by name ("H-1", "He-4", "C-12", ...).
 NUCLIDES: dict[str, Nuclide] = {n: Nuclide(n, z, a) for n, z, a in _TABLE}
+
+# Electron-capture daughters (A, Z) -> (A, Z - 1) of the nuclides above: name, Z and
+# atomic mass in u, AME2020 (Wang et al. 2021, Chinese Physics C 45, 030003), written
+# down from memory of that table and checked to about 1e-6 u (1 keV) against the
+# beta-decay Q values of the daughters (test_captures.py). The neutron is the daughter
+# of H-1 (CODATA 2018 neutron mass). H-2 and He-4 have no bound daughter (2n, H-4).
+_DAUGHTERS = [
+    ("H-1", "n", 0, 1.00866491595),
+    ("He-3", "H-3", 1, 3.01604928132),
+    ("C-12", "B-12", 5, 12.014352638),
+    ("C-13", "B-13", 5, 13.017779981),
+    ("N-14", "C-14", 6, 14.003241989),
+    ("N-15", "C-15", 6, 15.010599256),
+    ("O-16", "N-16", 7, 16.006101925),
+    ("O-18", "N-18", 7, 18.014077563),
+    ("Ne-20", "F-20", 9, 19.999981252),
+    ("Ne-22", "F-22", 9, 22.002998812),
+    ("Mg-24", "Na-24", 11, 23.990962950),
+    ("Si-28", "Al-28", 13, 27.981910009),
+    ("S-32", "P-32", 15, 31.973907643),
+    ("Ar-36", "Cl-36", 17, 35.968306822),
+    ("Ca-40", "K-40", 19, 39.963998166),
+    ("Fe-56", "Mn-56", 25, 55.938903691),
+    ("Ni-56", "Co-56", 27, 55.939838798),
+]
+
+#: Parent nuclide name -> its electron-capture daughter (A, Z-1) as a :class:`Nuclide`
+#: (atomic mass in u, AME2020). Parents without a bound daughter are absent.
+CAPTURE_DAUGHTERS: dict[str, Nuclide] = {p: Nuclide(d, z, a) for p, d, z, a in _DAUGHTERS}
 
 #: Metal mixtures of our own choosing: fractions *of Z* (each sums to 1).
 #: "solar-like" is a rounded mixture loosely shaped like the solar metals

@@ -68,6 +68,8 @@ QUANTITIES: tuple[Quantity, ...] = (
     Quantity("eps_cno", "log₁₀ ε_CNO (erg g⁻¹ s⁻¹)", None),
     Quantity("eps_triple_alpha", "log₁₀ ε_3α (erg g⁻¹ s⁻¹)", None),
     Quantity("eps_carbon", "log₁₀ ε_C+C (erg g⁻¹ s⁻¹)", None),
+    Quantity("log_eps_nu", "log₁₀ ε_ν neutrino losses (erg g⁻¹ s⁻¹)", None),
+    Quantity("nu_process", "dominant neutrino process", None, True),
 )
 _QUANTITY_BY_NAME = {q.name: q for q in QUANTITIES}
 
@@ -190,6 +192,12 @@ def _compute(comp, lr, lt, n_rho, n_T, opts) -> PlaneGrid:
             unavailable.append(name)
         else:
             fields[name] = _log_eps(np.asarray(burning.epsilon(rho, T, comp, process), dtype=float))
+    # neutrino losses (physics.neutrinos): the total, and the code of the largest part
+    # (index into neutrinos.PROCESSES; NaN where the total is below EPS_FLOOR)
+    from . import neutrinos
+    parts = neutrinos.epsilon_parts(rho, T, comp)
+    fields["log_eps_nu"] = _log_eps(parts["total"])
+    fields["nu_process"] = np.where(np.isfinite(fields["log_eps_nu"]), neutrinos.dominant_process(parts), np.nan)
     out = {}
     for name, value in fields.items():
         arr = np.ascontiguousarray(np.broadcast_to(value, shape), dtype=np.float32)

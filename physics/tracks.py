@@ -399,7 +399,8 @@ def boundary_fields(state, comp_or_ye=None) -> dict[str, np.ndarray]:
 
 
 def track_report(log_rho, log_T, comp: Composition, age=None, valid=None, X=None, Y=None,
-                 boundaries=None, **physics_options) -> tuple[pd.DataFrame, pd.DataFrame]:
+                 boundaries=None, frontiers: bool = False,
+                 **physics_options) -> tuple[pd.DataFrame, pd.DataFrame]:
     """Evaluate a track and find where it crosses each boundary.
 
     Parameters
@@ -410,6 +411,11 @@ def track_report(log_rho, log_T, comp: Composition, age=None, valid=None, X=None
     comp : Composition
     boundaries : iterable of str, optional
         Keys of :data:`BOUNDARY_FIELDS` to look for (default: all).
+    frontiers : bool
+        Also list crossings of the ignition curves eps_nuc = eps_nu and of the
+        electron-capture thresholds (keys and fields of
+        :func:`thermoplane.physics.frontiers.track_fields`; the app and the
+        CLI ask for them).
     **physics_options
         Passed to :func:`thermoplane.physics.eos.evaluate`.
 
@@ -437,4 +443,12 @@ def track_report(log_rho, log_T, comp: Composition, age=None, valid=None, X=None
     columns["x_F"] = fields["relativistic"]
     crossings = find_crossings({k: fields[k] for k in keys}, {k: BOUNDARY_FIELDS[k][1] for k in keys},
                                log_rho, log_T, age=age, valid=state["valid"])
+    if frontiers:
+        from .frontiers import track_fields
+        more = find_crossings(*track_fields(log_rho, log_T, comp, valid=state["valid"]),
+                              log_rho, log_T, age=age, valid=state["valid"])
+        if len(more):
+            both = [c for c in (crossings, more) if len(c)]
+            crossings = pd.concat(both, ignore_index=True).sort_values(
+                ["row", "fraction"], kind="stable").reset_index(drop=True)
     return pd.DataFrame(columns), crossings

@@ -10,7 +10,7 @@ import logging
 import numpy as np
 from dash import Input, Output, State, dcc, no_update
 
-from ...physics import regimes
+from ...physics import neutrinos, regimes
 
 from .map import ViewError, build, parse_view, quantity, view_from_store
 
@@ -47,6 +47,9 @@ def grid_csv(grid, name: str, label: str) -> str:
     else:
         v = values.ravel()
         vt = np.where(np.isfinite(v), np.char.mod("%.7g", np.nan_to_num(v)), "")
+        if name == "nu_process":                 # the dominant neutrino process by name, not its code
+            names = np.asarray(neutrinos.PROCESSES + ("",), dtype=object)
+            vt = names[np.where(np.isfinite(v), v, len(neutrinos.PROCESSES)).astype(int)]
         a = np.char.mod("%.6f", lr.ravel())
         b = np.char.mod("%.6f", lt.ravel())
         col = regime_names[grid.regime.ravel()]

@@ -121,6 +121,7 @@ def overlay_lines(grid, comp, view: dict, opts: dict) -> tuple[list, dict]:
             lines += layers.ignition_lines(grid, view["processes"], levels)
         except ValueError as err:
             messages["map-levels-message"] = str(err)
+    lines += layers.frontier_lines(grid, comp, view)
     if view.get("mass_lines"):
         try:
             masses = parse_number_list(view.get("masses"), "masses")
@@ -140,7 +141,10 @@ def build(comp, opts: dict, view: dict, extra_traces=()):
     lines, messages = overlay_lines(grid, comp, view, opts)
     common = dict(lines=lines, presentation=bool(view.get("presentation")), customdata=grid.regime,
                   extra_traces=extra_traces)
-    if q.categorical:
+    if q.categorical and q.name != "regime":
+        fig = figures.plane_figure(grid.log_rho, grid.log_T, grid.get(q.name), z_label=q.label,
+                                   categorical=layers.categories(q.name), **common)
+    elif q.categorical:
         fig = figures.plane_figure(grid.log_rho, grid.log_T, grid.regime, z_label=q.label,
                                    categorical=[(r.label, r.colour) for r in regimes.REGIMES], **common)
     else:

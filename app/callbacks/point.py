@@ -14,6 +14,7 @@ import math
 from dash import Input, Output, html, no_update
 
 from ... import physics as ph
+from ...physics import neutrinos
 
 from .map import ViewError, parse_view, view_from_store
 
@@ -34,6 +35,7 @@ SI = {
     "dyn cm^-2 K^-1": ("Pa K^-1", 0.1),
     "erg g^-1 / (g cm^-3)": ("J kg^-1 / (kg m^-3)", 1e-7),
     "cm^-3": ("m^-3", 1e6),
+    "erg g^-1 s^-1": ("W kg^-1", 1e-4),
 }
 
 
@@ -49,6 +51,20 @@ def point_values(comp, opts: dict, log_rho: float, log_T: float) -> dict[str, fl
     """Every ThermoState field at one point, cgs."""
     state = ph.evaluate(10.0 ** log_rho, 10.0 ** log_T, comp, **opts)
     return state.at(())
+
+
+def neutrino_rows(comp, log_rho: float, log_T: float, units: str = "cgs") -> list[tuple[str, float, str, str]]:
+    """Rows for the neutrino losses at one point: the total and each process (physics.neutrinos)."""
+    parts = neutrinos.epsilon_parts(10.0 ** log_rho, 10.0 ** log_T, comp)
+    out = []
+    for name in ("total",) + neutrinos.PROCESSES:
+        v, unit = float(parts[name]), "erg g^-1 s^-1"
+        if units == "si":
+            v, unit = to_si(v, unit)
+        what = ("neutrino energy loss rate, all processes (Itoh et al. 1996 fits)" if name == "total"
+                else f"neutrino losses by {neutrinos.PROCESS_LABELS[name]}")
+        out.append(("eps_nu" if name == "total" else f"eps_nu_{name}", v, unit, what))
+    return out
 
 
 def rows(values: dict[str, float], units: str = "cgs") -> list[tuple[str, float, str, str]]:
@@ -100,7 +116,7 @@ def pin_point(click, units, store):
         comp, opts, _ = parse_view(view)
         values = point_values(comp, opts, log_rho, log_T)
         units = "si" if units == "si" else "cgs"
-        table_rows = rows(values, units)
+        table_rows = rows(values, units) + neutrino_rows(comp, log_rho, log_T, units)
         heading = (f"Pinned: log ρ = {log_rho:.3f}, log T = {log_T:.3f}  "
                    f"(ρ = {10 ** log_rho:.4g} g cm⁻³, T = {10 ** log_T:.4g} K)")
         point = {"log_rho": log_rho, "log_T": log_T, "composition": comp.to_dict(), "options": opts}

@@ -176,6 +176,9 @@ def test_add_row():
 
 # -- point readout ------------------------------------------------------------------
 
+NEUTRINO_ROWS = {"eps_nu", "eps_nu_pair", "eps_nu_photo", "eps_nu_plasma", "eps_nu_bremsstrahlung"}
+
+
 def store(**changes):
     return map_cb.update_map(**controls(**changes))["view"]
 
@@ -184,7 +187,7 @@ def test_pin_gives_every_field_with_units_and_si_conversion():
     click = {"points": [{"x": 2.0, "y": 6.0}]}
     heading, table, js, csv_text, msg = point.pin_point(click, "cgs", store())
     data = json.loads(js)
-    assert msg == "" and set(data["state"]) == set(ph.FIELD_UNITS)
+    assert msg == "" and set(data["state"]) == set(ph.FIELD_UNITS) | NEUTRINO_ROWS
     assert data["units"]["P"] == "dyn cm^-2"
     assert data["state"]["rho"] == pytest.approx(100.0)
     _, _, js_si, csv_si, _ = point.pin_point(click, "si", store())
@@ -193,7 +196,7 @@ def test_pin_gives_every_field_with_units_and_si_conversion():
     assert si["state"]["P"] == pytest.approx(0.1 * data["state"]["P"])
     assert si["state"]["rho"] == pytest.approx(1e5) and si["units"]["rho"] == "kg m^-3"
     assert csv_si.splitlines()[0] == "quantity,value,unit,meaning"
-    assert len(csv_si.splitlines()) == 1 + len(ph.FIELD_UNITS)
+    assert len(csv_si.splitlines()) == 1 + len(ph.FIELD_UNITS) + len(NEUTRINO_ROWS)
 
 
 def test_every_unit_has_an_si_conversion():
@@ -253,3 +256,51 @@ def test_lines_are_read_off_the_cached_plane_without_physics(monkeypatch):
     keys = {line.key for line in layers.boundary_lines(grid, comp, opts, {"equality", "degeneracy"})}
     assert keys == {"equality", "degeneracy"}
     assert layers.mass_lines(grid, [1.0]) and layers.ignition_lines(grid, ["pp"], [1.0])
+
+
+def test_pin_shows_neutrino_losses_and_their_parts():
+    click = {"points": [{"x": 6.0, "y": 8.5}]}
+    comp = map_cb.parse_view(map_cb.view_from_store(store()))[0]
+    _, _, js, _, msg = point.pin_point(click, "cgs", store())
+    data = json.loads(js)
+    parts = ph.neutrinos.epsilon_parts(1e6, 10**8.5, comp)
+    assert msg == "" and data["units"]["eps_nu"] == "erg g^-1 s^-1"
+    assert data["state"]["eps_nu"] == pytest.approx(float(parts["total"]), rel=1e-12)
+    assert data["state"]["eps_nu_plasma"] == pytest.approx(float(parts["plasma"]), rel=1e-12)
+    total = sum(data["state"][f"eps_nu_{p}"] for p in ph.neutrinos.PROCESSES)
+    assert data["state"]["eps_nu"] == pytest.approx(total, rel=1e-12)
+    _, _, js_si, _, _ = point.pin_point(click, "si", store())
+    si = json.loads(js_si)
+    # 1 erg g^-1 s^-1 = 1e-7 J / 1e-3 kg / s = 1e-4 W kg^-1 (definitions of the units)
+    assert si["units"]["eps_nu"] == "W kg^-1"
+    assert si["state"]["eps_nu"] == pytest.approx(1e-4 * data["state"]["eps_nu"])
+
+
+def test_neutrino_shadings_and_lines_on_the_map():
+    out = map_cb.update_map(**controls(quantity="log_eps_nu", processes=("carbon",),
+                                       mix_on=True, mix=(("C-12", 0.5), ("O-16", 0.3), ("Ne-20", 0.15),
+                                                         ("Mg-24", 0.05))))
+    fig = out["figure"]
+    assert out["map-message"] == ""
+    z = np.asarray(heatmap(fig).z, dtype=float)
+    assert np.nanmax(z) > 10 and np.isfinite(z).mean() > 0.5
+    labels = {a.text for a in fig.layout.annotations}
+    assert {"carbon ignition (ε_nuc = ε_ν)", "e⁻ capture on ²⁴Mg", "e⁻ capture on ²⁰Ne"} <= labels
+    assert {"nu_ignition_carbon", "capture_Mg-24", "capture_Ne-20"} <= metas(fig)
+    # switched off: gone
+    off = map_cb.update_map(**controls(quantity="nu_process", processes=("carbon",), nu_ignition=False,
+                                       captures=False, mix_on=True, mix=(("C-12", 0.5), ("O-16", 0.5))))
+    fig = off["figure"]
+    assert not {m for m in metas(fig) if m.startswith(("nu_ignition", "capture"))}
+    # the categorical map: a legend entry per process, codes 0..3
+    names = [t.name for t in fig.data if t.type == "scatter" and t.showlegend]
+    assert names == [label for label, _ in layers.NU_PROCESS_CATEGORIES]
+    codes = np.asarray(heatmap(fig).z, dtype=float)
+    assert set(np.unique(codes[np.isfinite(codes)])) <= {0.0, 1.0, 2.0, 3.0}
+
+
+def test_grid_csv_names_the_dominant_neutrino_process():
+    grid = plane.plane_grid(ph.Composition({"C-12": 1.0}), n_rho=20, n_T=20, **FAST)
+    rows = export.grid_csv(grid, "nu_process", "dominant neutrino process").splitlines()[2:]
+    values = {r.split(",")[2] for r in rows}
+    assert values <= {"pair", "photo", "plasma", "bremsstrahlung", ""} and "pair" in values
