@@ -36,7 +36,39 @@ LINE_STYLES = {
     "he_ionization": ("#674ea7", "dashdot"),
     "ignition": ("#b45f06", "longdash"),
     "mass": ("#444444", "longdashdot"),
+    # one style per burning process (colour and dash both differ)
+    "ignition_pp": ("#b45f06", "longdash"),
+    "ignition_cno": ("#8e0152", "dash"),
+    "ignition_triple_alpha": ("#7a5a00", "dashdot"),
+    "ignition_carbon": ("#3d3d8f", "longdashdot"),
 }
+# styles for processes added later: dark colours the track palette never uses
+_EXTRA_IGNITION = (("#5b3a29", "dot"), ("#1f5f5b", "longdash"), ("#6b2d5c", "dashdot"))
+
+
+def ignition_style(process: str) -> str:
+    """Key into :data:`LINE_STYLES` of a burning process's ignition contours (each its own style)."""
+    key = f"ignition_{process}"
+    if key not in LINE_STYLES:
+        LINE_STYLES[key] = _EXTRA_IGNITION[sum(map(ord, process)) % len(_EXTRA_IGNITION)]
+    return key
+
+
+_SHORT = {"pp": "pp", "cno": "CNO", "triple_alpha": "3α", "carbon": "C+C"}
+_SUPERSCRIPT = str.maketrans("0123456789-", "⁰¹²³⁴⁵⁶⁷⁸⁹⁻")
+
+
+def level_text(level: float) -> str:
+    """1, 10³, 2.5e+04 -> short text for a label."""
+    e = np.log10(level)
+    if e == round(e) and abs(e) >= 2:
+        return "10" + str(int(round(e))).translate(_SUPERSCRIPT)
+    return f"{level:g}"
+
+
+def ignition_label(process: str, level: float) -> str:
+    """"ε_pp = 10³" for an ignition contour of ``process`` at ``level`` erg g^-1 s^-1."""
+    return f"ε_{_SHORT.get(process, process)} = {level_text(level)}"
 
 
 @dataclass

@@ -82,7 +82,36 @@ def _computed_name(name: str, taken) -> str:
     return name if name not in taken else f"{name}_computed"
 
 
-def enrich(df: pd.DataFrame, mapping: ColumnMapping, comp: Composition, **physics_options):
+def crossing_label(key: str) -> str:
+    """Words for a crossing key: a regime line's label, or "ε_pp = 10³ erg g⁻¹ s⁻¹" for an ignition contour."""
+    if key.startswith("ignition_"):
+        process, _, level = key[len("ignition_"):].rpartition("_")
+        try:
+            from .figures import ignition_label
+            return ignition_label(process, float(level)) + " erg g⁻¹ s⁻¹"
+        except ValueError:
+            return key
+    return regimes.BOUNDARY_LABELS.get(key, key.replace("_", " "))
+
+
+def short_label(key: str) -> str:
+    """A few characters to write beside a crossing marker on the map: the symbol part of its label."""
+    label = crossing_label(key)
+    if key.startswith("ignition_"):
+        return label.replace(" erg g⁻¹ s⁻¹", "")
+    inner = label[label.find("(") + 1:label.rfind(")")] if "(" in label and label.endswith(")") else ""
+    return inner or label
+
+
+def track_composition(comp: Composition, data: TrackData) -> Composition:
+    """The composition handed to the track's evaluation: the panel's, or (with nuclide columns)
+    a carrier of the track's own metal mixture."""
+    if data.metals:
+        return Composition.from_xyz(0.0, 0.0, 1.0, metals=data.metals)
+    return comp
+
+
+def enrich(df: pd.DataFrame, mapping: ColumnMapping, comp: Composition, ignition=(), **physics_options):
     """The user's table with the state and regime of every row, and its crossings.
 
     Parameters
@@ -93,6 +122,8 @@ def enrich(df: pd.DataFrame, mapping: ColumnMapping, comp: Composition, **physic
         Which columns are density, temperature, age, label, X, Y.
     comp : Composition
         Composition of every row (or the metal mixture when X/Y are mapped).
+    ignition : iterable of (process, level)
+        Ignition contours whose crossings are reported too (erg g^-1 s^-1).
     **physics_options
         Passed to :func:`thermoplane.physics.evaluate`.
 
@@ -116,8 +147,9 @@ def enrich(df: pd.DataFrame, mapping: ColumnMapping, comp: Composition, **physic
         A bad physics option.
     """
     data = apply_mapping(df, mapping)
-    state_columns, crossings = track_report(data.log_rho, data.log_T, comp, age=data.age, valid=data.valid,
-                                            X=data.X, Y=data.Y, **physics_options)
+    state_columns, crossings = track_report(data.log_rho, data.log_T, track_composition(comp, data), age=data.age,
+                                            valid=data.valid, X=data.X, Y=data.Y, ignition=ignition,
+                                            **physics_options)
     valid = np.isfinite(state_columns["P"].to_numpy())
     enriched = df.copy()
     enriched.attrs = {}
@@ -125,8 +157,20 @@ def enrich(df: pd.DataFrame, mapping: ColumnMapping, comp: Composition, **physic
         col = _computed_name(name, df.columns)
         enriched[col] = _regime(state_columns, valid) if name == "regime" else state_columns[name].to_numpy()
     crossings = crossings.copy()
-    crossings["label"] = [regimes.BOUNDARY_LABELS.get(k, k) for k in crossings["boundary"]]
+    crossings["label"] = [crossing_label(k) for k in crossings["boundary"]]
     return enriched, crossings, data
+
+
+def _finite(v):
+    return None if v is None or not np.isfinite(v) else round(float(v), 6)
+
+
+def composition_text(rec: dict) -> str:
+    """"X = 0.70, Y = 0.28, Z = 0.02 (track row)" for a crossing record."""
+    if rec.get("X") is None:
+        return "—"
+    where = "this track's own" if rec.get("composition") == "track" else "the panel's"
+    return f"X = {rec['X']:.3f}, Y = {rec['Y']:.3f}, Z = {rec['Z']:.3f} ({where})"
 
 
 def crossing_records(crossings: pd.DataFrame, rows=None) -> list[dict]:
@@ -141,7 +185,9 @@ def crossing_records(crossings: pd.DataFrame, rows=None) -> list[dict]:
                     "row": row, "row_after": after, "log_rho": float(rec["log_rho"]),
                     "log_T": float(rec["log_T"]),
                     "age": None if age is None or not np.isfinite(age) else float(age),
-                    "direction": int(rec["direction"])})
+                    "direction": int(rec["direction"]),
+                    "X": _finite(rec.get("X")), "Y": _finite(rec.get("Y")), "Z": _finite(rec.get("Z")),
+                    "composition": rec.get("composition", "panel")})
     return out
 
 
@@ -245,7 +291,8 @@ def demo_tracks(comp: Composition, n_points: int = 160, **physics_options) -> li
 # ----------------------------------------------------------------------------
 # the browser's copy
 # ----------------------------------------------------------------------------
-_MAPPING_FIELDS = ("rho_col", "T_col", "rho_log", "T_log", "units", "age_col", "label_col", "X_col", "Y_col")
+_MAPPING_FIELDS = ("rho_col", "T_col", "rho_log", "T_log", "units", "age_col", "label_col", "X_col", "Y_col",
+                   "Z_col", "nuclide_cols")
 
 
 def mapping_to_dict(mapping: ColumnMapping) -> dict:
@@ -262,6 +309,7 @@ def mapping_from_dict(d: dict) -> ColumnMapping:
         if k in d:
             setattr(m, k, d[k])
     m.rho_log, m.T_log = bool(m.rho_log), bool(m.T_log)
+    m.nuclide_cols = dict(m.nuclide_cols or {})
     return m
 
 
@@ -314,8 +362,8 @@ def to_store(df: pd.DataFrame, mapping: ColumnMapping, comp: Composition, *, nam
         rows = None
     sub = df if rows is None else df.iloc[rows]
     n_kept = len(sub)
-    mapped = [c for c in (mapping.rho_col, mapping.T_col, mapping.age_col, mapping.label_col, mapping.X_col,
-                          mapping.Y_col) if c is not None]
+    mapped = [c for c in (mapping.rho_col, mapping.T_col, mapping.age_col, mapping.label_col)
+              if c is not None] + mapping.composition_cols
     numeric, text, kept = {}, {}, []
     cells = 0
     for col in mapped + [c for c in df.columns if c not in mapped]:
