@@ -102,15 +102,23 @@ def _overlap(a, b) -> float:
     return max(dx, 0.0) * max(dy, 0.0)
 
 
-def place_labels(lines, x_range, y_range, font: float) -> list[tuple[float, float] | None]:
-    """A label point on each line, inside the view, avoiding earlier labels.
+def place_labels(lines, x_range, y_range, font: float, avoid=()) -> list[tuple[float, float] | None]:
+    """A label point on each line, inside the view, avoiding earlier labels and the ``avoid`` points.
 
     Greedy: for each line in turn, the first candidate position along its
     visible part (72 %, 50 %, 85 %, ... of the way) whose estimated text box
-    neither leaves the plot nor overlaps a label already placed; if none is
-    free, the candidate with the least overlap. None for a line not in view.
+    neither leaves the plot nor overlaps a label already placed or the box
+    around a point of ``avoid`` ((log rho, log T) of track ends and crossing
+    markers, with their text); if none is free, the candidate with the least
+    overlap. None for a line not in view.
     """
+    wx0 = x_range[1] - x_range[0]
+    wy0 = y_range[1] - y_range[0]
     placed, out = [], []
+    for ax, ay in avoid:
+        if np.isfinite(ax) and np.isfinite(ay):
+            fx, fy = (ax - x_range[0]) / wx0, (ay - y_range[0]) / wy0
+            placed.append((fx - 40 / _PLOT_PX[0], fy - 14 / _PLOT_PX[1], fx + 40 / _PLOT_PX[0], fy + 34 / _PLOT_PX[1]))
     wx = x_range[1] - x_range[0]
     wy = y_range[1] - y_range[0]
     for line in lines:
@@ -210,7 +218,14 @@ def plane_figure(log_rho: np.ndarray, log_T: np.ndarray, z: np.ndarray, *, z_lab
 
     x_range = (float(np.min(log_rho)), float(np.max(log_rho)))
     y_range = (float(np.min(log_T)), float(np.max(log_T)))
-    spots = place_labels(lines, x_range, y_range, font)
+    avoid = []
+    for tr in extra_traces:                     # track ends and crossing markers keep their place
+        meta = str(getattr(tr, "meta", None) or (tr.get("meta") if isinstance(tr, dict) else "") or "")
+        if meta.endswith((":ends", ":crossings")):
+            xs = np.asarray(tr["x"] if isinstance(tr, dict) else tr.x, dtype=float)
+            ys = np.asarray(tr["y"] if isinstance(tr, dict) else tr.y, dtype=float)
+            avoid += list(zip(xs, ys))
+    spots = place_labels(lines, x_range, y_range, font, avoid=avoid)
     for line, where in zip(lines, spots):
         colour, dash = LINE_STYLES.get(line.style or line.key, ("#111111", "solid"))
         x = np.asarray(line.log_rho, dtype=float)
@@ -260,8 +275,13 @@ def graph_config(filename: str = "thermoplane-map", scale: int = 3) -> dict:
 TRACK_PARAMETER_SCALE = "Cividis"
 
 
-def track_traces(track_id: str, name: str, colour: str, d: dict, *, colour_by: bool = False) -> list[go.Scatter]:
-    """Traces of one track over the map: a white halo, the line, start and end, crossings.
+def _legend_name(name: str, limit: int = 26) -> str:
+    return name if len(name) <= limit else name[:limit - 1] + "…"
+
+
+def track_traces(track_id: str, name: str, colour: str, d: dict, *, colour_by: bool = False,
+                 presentation: bool = False) -> list[go.Scatter]:
+    """Traces of one track over the map: a white halo, the line, start and end, labelled crossings.
 
     Parameters
     ----------
@@ -270,19 +290,24 @@ def track_traces(track_id: str, name: str, colour: str, d: dict, *, colour_by: b
     d : dict
         ``x``, ``y`` (log rho, log T; NaN on rows not evaluated), ``row``,
         ``age`` (or None), ``regime`` (words), ``beta``, ``eta`` per drawn
-        point; ``crossings`` (records with label, row, row_after, log_rho,
-        log_T, age); ``age_name`` (the parameter's column, or None).
+        point; ``crossings`` (records with label, short, row, row_after,
+        log_rho, log_T, age, X, Y, Z, composition); ``age_name`` (the
+        parameter's column, or None); ``composition`` (per drawn point text,
+        or None when the track has no composition of its own).
     colour_by : bool
         Colour the points by the parameter (age, else row) with a colour bar
         (beside the map's own; one track at a time).
+    presentation : bool
+        Thicker lines, larger markers and text, like the map's lines in presentation mode.
     """
+    big = 1.8 if presentation else 1.0
     x = np.asarray(d["x"], dtype=float)
     y = np.asarray(d["y"], dtype=float)
     row = np.asarray(d["row"])
     age = d.get("age")
     has_age = age is not None
     age = np.asarray(age, dtype=float) if has_age else row.astype(float)
-    custom = np.empty((x.size, 6), dtype=object)
+    custom = np.empty((x.size, 7), dtype=object)
     custom[:, 0] = row
     custom[:, 1] = np.where(np.isfinite(age), np.char.mod("%.5g", np.nan_to_num(age)), "—")
     with np.errstate(invalid="ignore"):
@@ -291,44 +316,57 @@ def track_traces(track_id: str, name: str, colour: str, d: dict, *, colour_by: b
     custom[:, 4] = d["regime"]
     custom[:, 5] = [f"β = {b:.4f}, η = {e:.3g}" if np.isfinite(b) else "not evaluated"
                     for b, e in zip(np.asarray(d["beta"], float), np.asarray(d["eta"], float))]
+    comp_rows = d.get("composition")
+    custom[:, 6] = comp_rows if comp_rows is not None else ""
     age_word = d.get("age_name") or "parameter"
     hover = (f"<b>{name}</b><br>row %{{customdata[0]}}"
              + (f", {age_word} = %{{customdata[1]}}" if has_age else "")
              + "<br>ρ = %{customdata[2]} g cm⁻³, T = %{customdata[3]} K<br>%{customdata[4]}<br>%{customdata[5]}"
-             "<extra></extra>")
+             + ("<br>own composition: %{customdata[6]}" if comp_rows is not None else "")
+             + "<extra></extra>")
     meta = f"track:{track_id}"
-    traces = [go.Scatter(x=x, y=y, mode="lines", line=dict(color="rgba(255,255,255,0.85)", width=6),
+    traces = [go.Scatter(x=x, y=y, mode="lines", line=dict(color="rgba(255,255,255,0.85)", width=6 * big),
                          hoverinfo="skip", showlegend=False, meta=meta + ":halo", connectgaps=False)]
-    line = dict(x=x, y=y, name=name, meta=meta, customdata=custom, hovertemplate=hover, connectgaps=False,
-                legendgroup=meta, showlegend=True)
+    line = dict(x=x, y=y, name=_legend_name(name), meta=meta, customdata=custom, hovertemplate=hover,
+                connectgaps=False, legendgroup=meta, showlegend=True)
     if colour_by:
-        line.update(mode="lines+markers", line=dict(color=colour, width=1.5),
-                    marker=dict(size=5, color=age, colorscale=TRACK_PARAMETER_SCALE, showscale=True,
-                                colorbar=dict(title=dict(text=f"{name}: {age_word if has_age else 'row'}",
+        line.update(mode="lines+markers", line=dict(color=colour, width=1.5 * big),
+                    marker=dict(size=5 * big, color=age, colorscale=TRACK_PARAMETER_SCALE, showscale=True,
+                                colorbar=dict(title=dict(text=f"{_legend_name(name)}: {age_word if has_age else 'row'}",
                                                          side="right"),
                                               x=1.13, len=0.7, thickness=12)))
     else:
-        line.update(mode="lines", line=dict(color=colour, width=2.5))
+        line.update(mode="lines", line=dict(color=colour, width=2.5 * big))
     traces.append(go.Scatter(**line))
     ok = np.flatnonzero(np.isfinite(x) & np.isfinite(y))
     if ok.size:
         ends = [ok[0], ok[-1]]
         traces.append(go.Scatter(
             x=x[ends], y=y[ends], mode="markers+text", text=["start", "end"], textposition="top center",
-            textfont=dict(color=colour, size=12), legendgroup=meta, showlegend=False, meta=meta + ":ends",
-            marker=dict(symbol=["circle", "square"], size=11, color=colour, line=dict(color="white", width=2)),
+            textfont=dict(color=colour, size=12 * big), legendgroup=meta, showlegend=False, meta=meta + ":ends",
+            marker=dict(symbol=["circle", "square"], size=11 * big, color=colour, line=dict(color="white", width=2)),
             hovertemplate=f"<b>{name}</b>: %{{text}} (row %{{customdata}})<extra></extra>",
             customdata=row[ends]))
     cr = d.get("crossings") or []
     if cr:
+        def comp_text(c):
+            if c.get("X") is None:
+                return ""
+            whose = "the track's own" if c.get("composition") == "track" else "the panel's"
+            return f"<br>composition ({whose}): X = {c['X']:.3f}, Y = {c['Y']:.3f}, Z = {c['Z']:.3f}"
+
         traces.append(go.Scatter(
-            x=[c["log_rho"] for c in cr], y=[c["log_T"] for c in cr], mode="markers", legendgroup=meta,
+            x=[c["log_rho"] for c in cr], y=[c["log_T"] for c in cr], mode="markers+text", legendgroup=meta,
             showlegend=False, meta=meta + ":crossings",
-            marker=dict(symbol="diamond", size=9, color="white", line=dict(color=colour, width=2)),
+            text=[c.get("short") or c["label"] for c in cr],
+            textposition=["middle right" if i % 2 == 0 else "middle left" for i in range(len(cr))],
+            textfont=dict(color="#1b1b1b", size=11 * big),
+            marker=dict(symbol="diamond", size=9 * big, color="white", line=dict(color=colour, width=2)),
             customdata=[[c["label"], f"{c['row']}–{c['row_after']}",
-                         "" if c.get("age") is None else f", {age_word} = {c['age']:.5g}"] for c in cr],
+                         "" if c.get("age") is None else f", {age_word} = {c['age']:.5g}", comp_text(c)]
+                        for c in cr],
             hovertemplate=f"<b>{name}</b> crosses %{{customdata[0]}}<br>between rows %{{customdata[1]}}"
-                          "%{customdata[2]}<br>log ρ = %{x:.3f}, log T = %{y:.3f}<extra></extra>"))
+                          "%{customdata[2]}<br>log ρ = %{x:.3f}, log T = %{y:.3f}%{customdata[3]}<extra></extra>"))
     return traces
 
 

@@ -31,8 +31,11 @@ OPTION_LABELS = {"fermi": "Fermi–Dirac", "classical": "classical", "saha": "Sa
 
 
 def _number(id_, value, step=0.01, min_=0.0, max_=1.0, label="", title=""):
+    """A number field. No min, max or step in the browser: a value the browser finds out of range
+    would reach the server as empty, so the callbacks check the range and say what is allowed."""
+    del step, min_, max_
     return html.Label([html.Span(label, className="field-label"),
-                       dcc.Input(id=id_, type="number", value=value, step=step, min=min_, max=max_,
+                       dcc.Input(id=id_, type="number", value=value, step="any",
                                  debounce=True, className="number-input")], className="field", title=title)
 
 

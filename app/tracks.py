@@ -50,10 +50,10 @@ __all__ = ["COMPUTED_COLUMNS", "ILLUSTRATIVE", "TRACK_COLOURS", "MAX_STORED_ROWS
 COMPUTED_COLUMNS = ("P", "P_gas", "P_rad", "beta", "eta", "gamma1", "nabla_ad", "regime")
 #: How the demo tracks are labelled wherever they are shown.
 ILLUSTRATIVE = "illustrative, computed by Thermoplane"
-#: Track colours: the colour-blind-safe palette of Okabe & Ito (2008, "Color
-#: Universal Design", J*FLY), darkest first so the first tracks stand out on
-#: the light map colours.
-TRACK_COLOURS = ("#000000", "#D55E00", "#0072B2", "#CC79A7", "#009E73", "#E69F00", "#56B4E9", "#F0E442")
+#: Track colours: bright, saturated colours that no line of the map uses (the lines are dark:
+#: app.figures.LINE_STYLES), so a track is never mistaken for a boundary; each is drawn over a
+#: white halo. Our own choice, checked against the line colours in tests/app/test_figures.py.
+TRACK_COLOURS = ("#E6007E", "#00A6D6", "#FF4D2E", "#7CC000", "#A05CFF", "#E0A800", "#00B3A1", "#FF6FAE")
 #: Rows per track kept in the browser (see the module notes).
 MAX_STORED_ROWS = 20_000
 #: Numbers per track kept in the browser.
@@ -321,10 +321,11 @@ def _unb64(text: str) -> np.ndarray:
     return np.frombuffer(base64.b64decode(text), dtype="<f8").copy()
 
 
-def read_upload(data: bytes, filename: str, max_bytes: int | None = None):
-    """read_table + detect_columns: (table, mapping); TableError with a message."""
+def read_upload(data: bytes, filename: str, max_bytes: int | None = None, **read_options):
+    """read_table (with the user's ``read_options``, see its keywords) + detect_columns:
+    (table, mapping); TableError with a message."""
     kwargs = {} if max_bytes is None else {"max_bytes": max_bytes}
-    df = read_table(data, filename, **kwargs)
+    df = read_table(data, filename, **kwargs, **read_options)
     return df, detect_columns(df)
 
 
@@ -332,13 +333,14 @@ def _options_key(opts: dict) -> list:
     return sorted([k, v] for k, v in opts.items())
 
 
-def report_key(mapping: ColumnMapping, comp: Composition, opts: dict) -> str:
+def report_key(mapping: ColumnMapping, comp: Composition, opts: dict, ignition=()) -> str:
     """What a full report depends on, as text (the browser compares it, the server never keeps it)."""
-    return json.dumps([mapping_to_dict(mapping), repr(comp.key()), _options_key(opts)], sort_keys=True)
+    return json.dumps([mapping_to_dict(mapping), repr(comp.key()), _options_key(opts),
+                       [[p, float(lv)] for p, lv in ignition]], sort_keys=True)
 
 
 def to_store(df: pd.DataFrame, mapping: ColumnMapping, comp: Composition, *, name: str, filename: str = "",
-             colour: str = TRACK_COLOURS[0], label: str = "", notes=(), **physics_options) -> dict:
+             colour: str = TRACK_COLOURS[0], label: str = "", notes=(), ignition=(), **physics_options) -> dict:
     """Evaluate every row once, then keep a compact copy for the browser.
 
     Returns a JSON-ready dict: ``id`` (content hash), ``name``, ``filename``,
@@ -353,7 +355,8 @@ def to_store(df: pd.DataFrame, mapping: ColumnMapping, comp: Composition, *, nam
     TableError, ValueError
         As :func:`enrich`.
     """
-    _, crossings, data = enrich(df, mapping, comp, **physics_options)
+    ignition = tuple((p, float(lv)) for p, lv in ignition)
+    _, crossings, data = enrich(df, mapping, comp, ignition=ignition, **physics_options)
     n = len(df)
     if n > MAX_STORED_ROWS:
         keep_idx = np.concatenate([crossings["row"].to_numpy(), crossings["row_after"].to_numpy()])
@@ -389,7 +392,7 @@ def to_store(df: pd.DataFrame, mapping: ColumnMapping, comp: Composition, *, nam
         "columns": [str(c) for c in df.columns], "kept": kept, "numeric": numeric, "text": text,
         "rows": None if rows is None else base64.b64encode(rows.astype("<i8").tobytes()).decode("ascii"),
         "n_rows": n, "mapping": mapping_to_dict(mapping),
-        "report": {"key": report_key(mapping, comp, physics_options),
+        "report": {"key": report_key(mapping, comp, physics_options, ignition),
                    "crossings": crossing_records(crossings),
                    "bad_rows": len(data.bad_rows),
                    "bad_examples": [data.bad_reasons[i] for i in data.bad_rows[:5]]},
@@ -433,7 +436,7 @@ def cache_clear() -> None:
     _CACHE.clear()
 
 
-def evaluate_stored(track: dict, comp: Composition, **physics_options) -> dict:
+def evaluate_stored(track: dict, comp: Composition, ignition=(), **physics_options) -> dict:
     """The state along a stored track for a composition, cached (bounded LRU of 16).
 
     Returns
@@ -450,17 +453,18 @@ def evaluate_stored(track: dict, comp: Composition, **physics_options) -> dict:
         As :func:`enrich` (e.g. a mapping that names a column not kept).
     """
     mapping = mapping_from_dict(track["mapping"])
+    ignition = tuple((p, float(lv)) for p, lv in ignition)
     key = (track["id"], json.dumps(track["mapping"], sort_keys=True), comp.key(),
-           tuple(sorted(physics_options.items())))
+           tuple(sorted(physics_options.items())), ignition)
     if key in _CACHE:
         _CACHE.move_to_end(key)
         return _CACHE[key]
     df = from_store(track)
     rows = stored_rows(track)
-    enriched, crossings, data = enrich(df, mapping, comp, **physics_options)
+    enriched, crossings, data = enrich(df, mapping, comp, ignition=ignition, **physics_options)
     report = track.get("report") or {}
     thinned = bool(track.get("rows"))
-    if report.get("key") == report_key(mapping, comp, physics_options):
+    if report.get("key") == report_key(mapping, comp, physics_options, ignition):
         records, exact = report.get("crossings", []), True
     else:
         records, exact = crossing_records(crossings, rows), not thinned

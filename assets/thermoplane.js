@@ -24,6 +24,21 @@ window.dash_clientside = Object.assign({}, window.dash_clientside, {
       }
       return parts.join("   ·   ");
     },
+    pinTrackRow: function (click) {
+      var nu = window.dash_clientside.no_update;
+      if (!click || !click.points || !click.points.length) { return [nu, nu]; }
+      var p = click.points[0];
+      var gd = document.querySelector("#plane-graph .js-plotly-plot");
+      var t = gd && gd.data ? gd.data[p.curveNumber] : null;
+      var meta = t && typeof t.meta === "string" ? t.meta : "";
+      if (meta.indexOf("track:") !== 0) { return [nu, nu]; }
+      var parts = meta.split(":"), id = parts[1], kind = parts[2] || "line", row = null, c = p.customdata;
+      if (kind === "line" && Array.isArray(c)) { row = Number(c[0]); }
+      else if (kind === "ends") { row = Number(c); }
+      else if (kind === "crossings" && Array.isArray(c)) { row = parseInt(String(c[1]), 10); }
+      if (row === null || !isFinite(row)) { return [nu, nu]; }
+      return [row, id];
+    },
     writeUrl: function (store) {
       if (!store || store.query === undefined) { return window.dash_clientside.no_update; }
       var url = window.location.pathname + store.query;

@@ -16,10 +16,10 @@ from ... import physics as ph
 from ...physics import eos, plane, regimes
 
 from .. import figures
-from ..state import COLOR_CHOICES, CONTROLS, DEFAULT_VIEW, QUANTITY_NAMES, UI_RESOLUTION, controls_to_view, \
-    encode_view, parse_number_list
-from . import layers
-from .composition import CompositionError, MixError, composition_from_view, number, readout
+from ..state import COLOR_CHOICES, CONTROLS, DEFAULT_VIEW, controls_to_view, encode_view
+from ..view import (ViewError, _range, composition_from_inputs, jsonable, overlay_lines, parse_view,  # noqa: F401
+                    physics_options, quantity, track_overlay, view_from_store)
+from .composition import readout
 
 log = logging.getLogger(__name__)
 
@@ -33,103 +33,12 @@ GENERIC_ERROR = "Something went wrong while drawing the map; the server log has 
 _QUANTITY = {q.name: q for q in plane.QUANTITIES}
 
 
-class ViewError(ValueError):
-    """A bad control value, with the id of the message area next to it."""
-
-    def __init__(self, where: str, message: str):
-        super().__init__(message)
-        self.where = where
-
-
-def composition_from_inputs(X, Y, Z) -> ph.Composition:
-    """X, Y, Z from the browser -> Composition (solar-like metals); ValueError with a message."""
-    return composition_from_view({"X": X, "Y": Y, "Z": Z, "metals": DEFAULT_VIEW["metals"]})
-
-
-def physics_options(view: dict) -> dict:
-    """The equation-of-state options of a view, checked by physics.eos.validate_options."""
-    try:
-        return eos.validate_options(electrons=view["electrons"], ionization=view["ionization"],
-                                    coulomb=bool(view["coulomb"]), pairs=bool(view["pairs"]))
-    except ValueError as err:
-        raise ViewError("phys-message", str(err)) from None
-
-
-def quantity(name: str):
-    """The plane.Quantity of a name; ViewError for an unknown one."""
-    if name not in _QUANTITY:
-        raise ViewError("map-message", f"unknown shaded quantity {name!r}; choose one of {', '.join(QUANTITY_NAMES)}")
-    return _QUANTITY[name]
-
-
-def _range(pair, name: str, limits) -> tuple[float, float]:
-    try:
-        lo = number(pair[0], f"{name} from", *limits)
-        hi = number(pair[1], f"{name} to", *limits)
-    except ValueError as err:
-        raise ViewError("map-range-message", str(err)) from None
-    if not lo < hi:
-        raise ViewError("map-range-message", f"{name}: 'from' ({lo:g}) must be below 'to' ({hi:g})")
-    return lo, hi
-
-
-def parse_view(view: dict):
-    """Check a view; returns (comp, options, view with numbers in place).
-
-    Raises
-    ------
-    ViewError
-        With ``where`` = the message area of the control at fault.
-    """
-    try:
-        comp = composition_from_view(view)
-    except MixError as err:
-        raise ViewError("mix-message", str(err)) from None
-    except CompositionError as err:
-        raise ViewError("comp-message", str(err)) from None
-    opts = physics_options(view)
-    lr = _range(view["log_rho"], "log ρ", plane.LOG_RHO_LIMITS)
-    lt = _range(view["log_T"], "log T", plane.LOG_T_LIMITS)
-    try:
-        n = number(view["resolution"], "resolution", *UI_RESOLUTION)
-    except ValueError as err:
-        raise ViewError("map-range-message", str(err)) from None
-    if n != int(n):
-        raise ViewError("map-range-message", f"resolution = {n:g} must be a whole number")
-    quantity(view["quantity"])
-    if view.get("colorscale") not in COLOR_CHOICES:
-        raise ViewError("map-message", f"unknown colour scale {view.get('colorscale')!r}")
-    clean = {**view, "log_rho": lr, "log_T": lt, "resolution": int(n)}
-    return comp, opts, clean
-
-
 def _colours(q, choice: str):
     _, scale, diverging = COLOR_CHOICES[choice]
     if scale is None:                                   # automatic
         diverging = q.centre is not None
         scale = "PuOr_r" if diverging else "Viridis"
     return scale, (q.centre if diverging else None)
-
-
-def overlay_lines(grid, comp, view: dict, opts: dict) -> tuple[list, dict]:
-    """Every line the view asks for, and messages for the list fields that could not be read."""
-    lines = layers.boundary_lines(grid, comp, opts, set(view["layers"]))
-    messages = {}
-    if view.get("ignition") and view.get("processes"):
-        try:
-            levels = parse_number_list(view.get("levels"), "ε levels")
-            lines += layers.ignition_lines(grid, view["processes"], levels)
-        except ValueError as err:
-            messages["map-levels-message"] = str(err)
-    if view.get("mass_lines"):
-        try:
-            masses = parse_number_list(view.get("masses"), "masses")
-            if any(m > 1e4 or m < 1e-3 for m in masses):
-                raise ValueError("masses must be between 0.001 and 10000 M☉")
-            lines += layers.mass_lines(grid, masses)
-        except ValueError as err:
-            messages["map-masses-message"] = str(err)
-    return lines, messages
 
 
 def build(comp, opts: dict, view: dict, extra_traces=()):
@@ -178,18 +87,6 @@ def _empty_messages() -> dict:
     return {m: "" for m in MESSAGES}
 
 
-def track_overlay(tracks_data, colour_by, comp, opts) -> list:
-    """Traces of the visible stellar tracks (app.callbacks.tracks), from its cache."""
-    if not tracks_data or not tracks_data.get("tracks"):
-        return []
-    from .tracks import overlay_traces
-    try:
-        return overlay_traces(tracks_data, comp, opts, colour_by)
-    except Exception:                                  # a track never takes the map down
-        log.exception("track overlay failed")
-        return []
-
-
 def update_map(tracks=None, track_colour_by=None, **controls) -> dict:
     """Callback body: control values (keyed like state.CONTROLS) -> outputs dict.
 
@@ -205,10 +102,10 @@ def update_map(tracks=None, track_colour_by=None, **controls) -> dict:
         view = controls_to_view(**controls)
         comp, opts, clean = parse_view(view)
         out["readout"] = readout(comp)
-        fig, grid, messages = build(comp, opts, clean, track_overlay(tracks, track_colour_by, comp, opts))
+        fig, grid, messages = build(comp, opts, clean, track_overlay(tracks, track_colour_by, comp, opts, clean))
         out.update(messages)
         out["figure"] = fig
-        out["view"] = {"view": _jsonable(clean), "query": encode_view(clean)}
+        out["view"] = {"view": jsonable(clean), "query": encode_view(clean)}
     except ViewError as err:
         out[err.where] = str(err)
     except ValueError as err:
@@ -217,32 +114,6 @@ def update_map(tracks=None, track_colour_by=None, **controls) -> dict:
         log.exception("map callback failed")
         out["map-message"] = GENERIC_ERROR
     return out
-
-
-def _json_safe(v):
-    """Values a browser store can hold: huge integers and non-finite floats become text."""
-    if isinstance(v, bool) or v is None or isinstance(v, str):
-        return v
-    if isinstance(v, int):
-        return v if abs(v) < 2**53 else str(v)
-    if isinstance(v, float):
-        return v if np.isfinite(v) else str(v)
-    if isinstance(v, (list, tuple)):
-        return [_json_safe(x) for x in v]
-    return str(v)
-
-
-def _jsonable(view: dict) -> dict:
-    return {k: _json_safe(v) for k, v in view.items()}
-
-
-def view_from_store(data) -> dict:
-    """The view kept in the browser by :func:`update_map` (tuples restored)."""
-    v = dict((data or {}).get("view") or DEFAULT_VIEW)
-    for k in ("log_rho", "log_T", "layers", "processes"):
-        v[k] = tuple(v.get(k) or ())
-    v["mix"] = tuple(tuple(r) for r in v.get("mix") or ())
-    return {**DEFAULT_VIEW, **v}
 
 
 def register(app) -> None:

@@ -15,7 +15,7 @@ from dash import Input, Output, html, no_update
 
 from ... import physics as ph
 
-from .map import ViewError, parse_view, view_from_store
+from ..view import ViewError, parse_view, view_from_store
 
 log = logging.getLogger(__name__)
 
@@ -101,8 +101,10 @@ def pin_point(click, units, store):
         values = point_values(comp, opts, log_rho, log_T)
         units = "si" if units == "si" else "cgs"
         table_rows = rows(values, units)
-        heading = (f"Pinned: log ρ = {log_rho:.3f}, log T = {log_T:.3f}  "
-                   f"(ρ = {10 ** log_rho:.4g} g cm⁻³, T = {10 ** log_T:.4g} K)")
+        rho_text = (f"ρ = {10 ** (log_rho + 3):.4g} kg m⁻³" if units == "si"
+                    else f"ρ = {10 ** log_rho:.4g} g cm⁻³")
+        heading = (f"Pinned: log ρ = {log_rho:.3f}, log T = {log_T:.3f}  (log ρ in g cm⁻³; "
+                   f"{rho_text}, T = {10 ** log_T:.4g} K)")
         point = {"log_rho": log_rho, "log_T": log_T, "composition": comp.to_dict(), "options": opts}
         return heading, state_table(table_rows), as_json(point, table_rows, units), as_csv(table_rows), ""
     except (ViewError, ValueError) as err:

@@ -242,19 +242,25 @@ def test_upload_through_the_callback_clears_the_upload_for_the_next_file():
 def test_results_crossings_table_and_quantity_plot():
     store, _ = upload("example_central_track.csv")
     view = {"view": {**DEFAULT_VIEW, **FAST}}
-    info, rows, fig = ct.results(store, None, view, "beta", "age")
-    ev = tk.evaluate_stored(store["tracks"][0], COMP, **FAST)
+    info, rows, fig, cols, preview = ct.results(store, None, view, "beta", "age")
+    ignition = tuple((p, lv) for p in DEFAULT_VIEW["processes"] for lv in (1.0, 1e3))
+    ev = tk.evaluate_stored(store["tracks"][0], COMP, ignition=ignition, **FAST)
     assert len(rows) == len(ev["crossings"]) > 0
+    # the report holds the ignition crossings at the view's levels, and says which composition it used
+    assert any(r["label"] == "ε_pp = 10³ erg g⁻¹ s⁻¹" for r in rows)
+    assert all(r["composition"].endswith("(the panel's)") for r in rows)
+    # the preview grid: the first rows with the computed columns
+    assert len(preview) == min(60, ct.PREVIEW_ROWS) and "regime" in [c["headerName"] for c in cols]
     assert rows[0]["rows"] == f"{ev['crossings'][0]['row']}–{ev['crossings'][0]['row_after']}"
     assert len(fig.data) == 1 and fig.layout.yaxis.title.text.startswith("β")
     assert fig.layout.xaxis.title.text == "age_yr"
-    _, _, fig = ct.results(store, None, view, "P", "row")
+    _, _, fig, _, _ = ct.results(store, None, view, "P", "row")
     assert fig.layout.yaxis.type == "log" and fig.layout.xaxis.title.text == "row"
     # against the parameter, only tracks with the same parameter column share the axis
     both, _ = upload("example_profile.tsv", store=store)
-    _, _, fig = ct.results(both, store["tracks"][0]["id"], view, "beta", "age")
+    _, _, fig, _, _ = ct.results(both, store["tracks"][0]["id"], view, "beta", "age")
     assert [t.name for t in fig.data] == ["example_central_track.csv"]
-    _, _, fig = ct.results(both, store["tracks"][0]["id"], view, "beta", "row")
+    _, _, fig, _, _ = ct.results(both, store["tracks"][0]["id"], view, "beta", "row")
     assert len(fig.data) == 2
 
 
