@@ -154,7 +154,8 @@ def plane_figure(log_rho: np.ndarray, log_T: np.ndarray, z: np.ndarray, *, z_lab
                  hover_text: np.ndarray | None = None,
                  categorical: list[tuple[str, str]] | None = None,
                  customdata: np.ndarray | None = None,
-                 extra_traces=()) -> go.Figure:
+                 extra_traces=(), colorbar_ticks=None, colorbar_note: str = "", hover_value: bool = True,
+                 unphysical: np.ndarray | None = None, unphysical_label: str = "no physical value") -> go.Figure:
     """The density–temperature map: a shaded field with labelled lines over it.
 
     Parameters
@@ -180,6 +181,16 @@ def plane_figure(log_rho: np.ndarray, log_T: np.ndarray, z: np.ndarray, *, z_lab
         Drawn over everything else (the hook for stellar tracks).
     presentation : bool
         Larger type and thicker lines, for a projector.
+    colorbar_ticks : (values, texts), optional
+        Where the colour bar's ticks go and what they say (signed-log scales, "≥ 3.2" at a clipped end).
+    colorbar_note : str
+        A second, smaller line under the colour bar's title ("colours clipped ...").
+    hover_value : bool
+        Show the shaded value in the plot's own hover box (False when ``z`` is transformed:
+        the readout under the map shows the real value).
+    unphysical : 2-D bool array, optional
+        Pixels with no physical value, drawn grey on top with a legend entry ``unphysical_label``
+        and a hover box that says why.
     """
     font = 20 if presentation else 13
     line_scale = 2.0 if presentation else 1.0
@@ -199,8 +210,12 @@ def plane_figure(log_rho: np.ndarray, log_T: np.ndarray, z: np.ndarray, *, z_lab
                                marker=dict(size=18 if presentation else 14, color=colour, symbol="square"),
                                showlegend=True, hoverinfo="skip"))
     else:
-        heat.update(colorscale=colorscale,
-                    colorbar=dict(title=dict(text=z_label, side="right"), thickness=22 if presentation else 16))
+        bar_title = z_label + (f"<br><span style='font-size:0.8em'>{colorbar_note}</span>" if colorbar_note else "")
+        bar = dict(title=dict(text=bar_title, side="right"), thickness=22 if presentation else 16)
+        if colorbar_ticks is not None:
+            bar.update(tickmode="array", tickvals=list(map(float, colorbar_ticks[0])),
+                       ticktext=list(colorbar_ticks[1]))
+        heat.update(colorscale=colorscale, colorbar=bar)
         if z_range is not None:
             heat.update(zmin=z_range[0], zmax=z_range[1])
         elif z_mid is not None:
@@ -211,10 +226,23 @@ def plane_figure(log_rho: np.ndarray, log_T: np.ndarray, z: np.ndarray, *, z_lab
         heat.update(text=hover_text, hovertemplate="%{text}<extra></extra>")
     elif categorical:
         heat.update(hovertemplate="log ρ = %{x:.2f}<br>log T = %{y:.2f}<extra></extra>")
-    else:
+    elif hover_value:
         heat.update(hovertemplate="log ρ = %{x:.2f}<br>log T = %{y:.2f}<br>"
                     + z_label + " = %{z:.4g}<extra></extra>")
+    else:
+        heat.update(hovertemplate="log ρ = %{x:.2f}<br>log T = %{y:.2f}<br>" + z_label
+                    + ": see the readout under the map<extra></extra>")
     traces.append(dict(type="heatmap", **heat))
+    if unphysical is not None:
+        grey = "#9e9e9e"
+        traces.append(dict(type="heatmap", x=heat["x"], y=heat["y"],
+                           z=np.where(np.asarray(unphysical, bool), 1.0, np.nan).astype(np.float32),
+                           colorscale=[[0, grey], [1, grey]], showscale=False, zsmooth=False, hoverongaps=False,
+                           name=unphysical_label, meta="unphysical",
+                           hovertemplate="log ρ = %{x:.2f}<br>log T = %{y:.2f}<br>" + unphysical_label
+                           + "<extra></extra>"))
+        traces.append(dict(type="scatter", x=[None], y=[None], mode="markers", name=unphysical_label,
+                           marker=dict(size=14, color=grey, symbol="square"), showlegend=True, hoverinfo="skip"))
 
     x_range = (float(np.min(log_rho)), float(np.max(log_rho)))
     y_range = (float(np.min(log_T)), float(np.max(log_T)))
@@ -253,8 +281,10 @@ def plane_figure(log_rho: np.ndarray, log_T: np.ndarray, z: np.ndarray, *, z_lab
                     t=(50 if title else 20) + ((70 if presentation else 40) if categorical else 0),
                     b=70 if presentation else 60),
         plot_bgcolor="white", paper_bgcolor="white",
+        # one legend row or two above the plot; with many tracks it scrolls instead of eating the map
         legend=dict(orientation="h", yanchor="bottom", y=1.02, x=0, bgcolor="rgba(255,255,255,0.8)",
-                    font=dict(size=font - 4 if presentation else font)),
+                    font=dict(size=font - 4 if presentation else font - 1), maxheight=0.14, entrywidthmode="pixels",
+                    itemwidth=30),
         uirevision="plane",
     )
     return fig

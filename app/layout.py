@@ -11,10 +11,12 @@ from __future__ import annotations
 from dash import dash_table, dcc, html
 
 from .. import physics as ph
-from ..physics import burning, plane, regimes
+from ..physics import burning, impact, plane, regimes
 
 from . import figures
-from .state import COLOR_CHOICES, DEFAULT_VIEW, UI_RESOLUTION, view_to_controls
+from .state import COLOR_CHOICES, DEFAULT_VIEW, MAP_QUANTITIES, UI_RESOLUTION, view_to_controls
+from .callbacks.point import state_grid
+from .view import ASINH_SCALES
 
 #: One-line explanations of the physics options (shown on hover).
 OPTION_HELP = {
@@ -109,7 +111,7 @@ def map_controls_panel(c: dict) -> html.Section:
         html.H3("Map"),
         html.Label([html.Span("shaded quantity", className="field-label"),
                     dcc.Dropdown(id="map-quantity", value=c["quantity"], clearable=False, className="dropdown",
-                                 options=[{"label": q.label, "value": q.name} for q in plane.QUANTITIES])],
+                                 options=[{"label": q.label, "value": q.name} for q in MAP_QUANTITIES])],
                    className="field"),
         html.Label([html.Span("colour scale", className="field-label"),
                     dcc.Dropdown(id="map-colorscale", value=c["colorscale"], clearable=False, className="dropdown",
@@ -237,7 +239,7 @@ def point_panel() -> html.Section:
                   html.Span("CSV", className="clip-label")], className="point-bar"),
         html.Div("Click the map to pin a point.", id="point-heading", className="readout"),
         _message("point-message"),
-        html.Div(id="point-table"),
+        html.Div(state_grid(), id="point-table"),
         html.Details([html.Summary("as text"),
                       dcc.Textarea(id="point-json", readOnly=True, className="copy-text"),
                       dcc.Textarea(id="point-csv", readOnly=True, className="copy-text")]),
@@ -249,7 +251,7 @@ def map_area() -> html.Div:
         dcc.Loading(dcc.Graph(id="plane-graph", config=figures.graph_config(), className="plane-graph",
                               style={"height": "72vh", "minHeight": "480px"}),
                     type="circle", delay_show=250, id="plane-loading"),
-        html.Div("Hover over the map to read a point.", id="hover-readout", className="readout hover"),
+        html.Div("Hover over the map to read a point.", id="hover-readout", className="readout hover-line"),
         tracks_results(),
         point_panel(),
         about_panel(),
@@ -258,7 +260,10 @@ def map_area() -> html.Div:
 
 def _labels() -> dict:
     return {"regimes": [r.label for r in regimes.REGIMES],
-            "quantities": {q.name: q.label for q in plane.QUANTITIES}}
+            "quantities": {q.name: q.label for q in MAP_QUANTITIES},
+            # shadings drawn on a signed-log scale: the hover readout turns the colour value back
+            "asinh": {name: unit for name, unit in ASINH_SCALES.items()},
+            "impact_categories": impact.category_labels()}
 
 
 def build_layout():

@@ -21,7 +21,7 @@ from . import figures
 from . import tracks as tk
 from .callbacks import layers
 from .callbacks.composition import CompositionError, MixError, composition_from_view, number
-from .state import COLOR_CHOICES, DEFAULT_VIEW, QUANTITY_NAMES, UI_RESOLUTION, parse_number_list
+from .state import COLOR_CHOICES, DEFAULT_VIEW, MAP_QUANTITIES, QUANTITY_NAMES, UI_RESOLUTION, parse_number_list
 from .upload import TableError
 
 log = logging.getLogger(__name__)
@@ -30,7 +30,11 @@ __all__ = ["ViewError", "parse_view", "physics_options", "quantity", "compositio
            "view_from_store", "jsonable", "comp_and_options", "stored_tracks", "overlay_traces", "track_overlay",
            "ignition_of", "ignition_from_store"]
 
-_QUANTITY = {q.name: q for q in plane.QUANTITIES}
+_QUANTITY = {q.name: q for q in MAP_QUANTITIES}
+#: Shadings drawn on a signed-log scale, asinh(value / unit): the unit is where the scale turns from
+#: linear to logarithmic. η runs from -30 to 1e8 on the default plane; the impacts from 1e-6 to 100 %.
+ASINH_SCALES = {"eta": 1.0, **{q.name: 1.0 for q in MAP_QUANTITIES if q.name.startswith("impact_")
+                                and not q.categorical}}
 _REGIME_LABEL = {r.key: r.label for r in regimes.REGIMES}
 _REGIME_LABEL[""] = "not evaluated"
 
@@ -58,7 +62,7 @@ def physics_options(view: dict) -> dict:
 
 
 def quantity(name: str):
-    """The plane.Quantity of a name; ViewError for an unknown one."""
+    """The plane.Quantity of a name (the plane's or an impact map); ViewError for an unknown one."""
     if name not in _QUANTITY:
         raise ViewError("map-message", f"unknown shaded quantity {name!r}; choose one of {', '.join(QUANTITY_NAMES)}")
     return _QUANTITY[name]

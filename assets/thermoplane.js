@@ -15,8 +15,19 @@ window.dash_clientside = Object.assign({}, window.dash_clientside, {
         var pn = p.pointNumber;
         if (t && t.customdata && Array.isArray(pn) && t.customdata[pn[0]]) { code = t.customdata[pn[0]][pn[1]]; }
       }
-      if (q && q !== "regime" && p.z !== undefined && p.z !== null) {
+      var gdh = document.querySelector("#plane-graph .js-plotly-plot");
+      var tr = gdh && gdh.data ? gdh.data[p.curveNumber] : null;
+      if (tr && tr.meta === "unphysical") {
+        parts.push("no physical value here: P ≤ 0 with these options (the Coulomb term exceeds the ideal pressure)");
+        return parts.join("   ·   ");
+      }
+      if (q === "impact_which" && p.z !== undefined && p.z !== null && labels.impact_categories) {
+        var k = Number(p.z);
+        parts.push("matters most: " + (isFinite(k) && labels.impact_categories[k] !== undefined ? labels.impact_categories[k] : "—"));
+      } else if (q && q !== "regime" && p.z !== undefined && p.z !== null) {
         var z = Number(p.z);
+        var unit = labels.asinh ? labels.asinh[q] : undefined;
+        if (unit !== undefined && isFinite(z)) { z = unit * Math.sinh(z); }
         parts.push((labels.quantities[q] || q) + " = " + (isFinite(z) ? z.toPrecision(4) : "—"));
       }
       if (code !== undefined && code !== null && labels.regimes[code] !== undefined) {

@@ -13,11 +13,11 @@ import numpy as np
 from dash import Input, Output, State, no_update
 
 from ... import physics as ph
-from ...physics import eos, plane, regimes
+from ...physics import impact, plane, regimes
 
 from .. import figures
 from ..state import COLOR_CHOICES, CONTROLS, DEFAULT_VIEW, controls_to_view, encode_view
-from ..view import (ViewError, _range, composition_from_inputs, jsonable, overlay_lines, parse_view,  # noqa: F401
+from ..view import (ASINH_SCALES, ViewError, _range, composition_from_inputs, jsonable, overlay_lines, parse_view,  # noqa: F401
                     physics_options, quantity, track_overlay, view_from_store)
 from .composition import readout
 
@@ -30,7 +30,8 @@ __all__ = ["MESSAGES", "ViewError", "parse_view", "physics_options", "map_figure
 MESSAGES = ("comp-message", "mix-message", "phys-message", "map-range-message", "map-levels-message",
             "map-masses-message", "map-message")
 GENERIC_ERROR = "Something went wrong while drawing the map; the server log has the details."
-_QUANTITY = {q.name: q for q in plane.QUANTITIES}
+#: Legend words for the grey region where no value is physical.
+UNPHYSICAL_LABEL = "no physical value: P ≤ 0 with these options"
 
 
 def _colours(q, choice: str):
@@ -41,31 +42,157 @@ def _colours(q, choice: str):
     return scale, (q.centre if diverging else None)
 
 
+#: Colour range of a sequential map: these percentiles of its pixels, so one spike (Γ₁ next to the
+#: pressure-ionization band) does not turn the whole map one colour. Our choice; common practice.
+ROBUST_PERCENTILES = (1.0, 99.0)
+
+
+def _centred_scale(name: str, lo: float, hi: float, centre: float) -> list:
+    """A diverging colour scale stretched so that its middle colour sits at ``centre`` in [lo, hi]."""
+    import plotly.colors as pc
+    f0 = min(max((centre - lo) / (hi - lo), 0.02), 0.98)
+    out = []
+    for pos, colour in pc.get_colorscale(name):
+        out.append([pos * 2 * f0 if pos <= 0.5 else f0 + (pos - 0.5) * 2 * (1 - f0), colour])
+    return out
+
+_IMPACT_COLOURS = ("#d9d9d9", "#0072B2", "#D55E00", "#009E73", "#CC79A7", "#E69F00", "#56B4E9", "#F0E442")
+
+
+def _shading(comp, opts, view, grid, q):
+    """The values to shade for quantity ``q`` (the plane's field, or an impact map)."""
+    if not q.name.startswith("impact_"):
+        return grid.get(q.name)
+    n = int(view["resolution"])
+    lr, lt = tuple(view["log_rho"]), tuple(view["log_T"])
+    if q.categorical:
+        which, _ = impact.impact_categories(comp, lr, lt, n, **opts)
+        return which
+    rest = q.name[len("impact_"):]
+    field = next(f for f in impact.IMPACT_FIELDS if rest.endswith("_" + f))
+    return impact.impact_percent(comp, rest[:-len(field) - 1], field, lr, lt, n, **opts)
+
+
+def _nice_ticks(lo: float, hi: float, n: int = 6) -> np.ndarray:
+    span = hi - lo
+    raw = span / max(n - 1, 1)
+    mag = 10.0 ** np.floor(np.log10(raw))
+    step = mag * min((1, 2, 2.5, 5, 10), key=lambda m: abs(m * mag - raw))
+    ticks = np.arange(np.ceil(lo / step) * step, hi + 1e-9 * span, step)
+    return ticks[(ticks - lo > 0.25 * step) & (hi - ticks > 0.25 * step)]
+
+
+def _fmt_tick(v: float) -> str:
+    return f"{v:.4g}"
+
+
+def _asinh_ticks(lo: float, hi: float, unit: float):
+    """Tick positions (in asinh units) and texts (in the quantity's units) for a signed-log colour bar:
+    0 and powers of ten, outward from 0, none closer to the last than a twelfth of the bar."""
+    gap = (hi - lo) / 12.0
+    pos, vals = [], []
+    if lo <= 0 <= hi:
+        pos.append(0.0)
+        vals.append(0.0)
+    for sign in (1, -1):
+        last = 0.0
+        for k in range(-6, 16):
+            v = sign * unit * 10.0 ** k
+            p = float(np.arcsinh(v / unit))
+            if lo + 0.5 * gap <= p <= hi - 0.5 * gap and abs(p - last) >= gap:
+                pos.append(p)
+                vals.append(v)
+                last = p
+    order = np.argsort(pos)
+    return np.asarray(pos)[order], [f"{vals[i]:g}" for i in order]
+
+
+def _colour_range(z, q, mid, transform_unit):
+    """(z to draw, zmin, zmax, tick values, tick texts, clipped (low, high))."""
+    finite = z[np.isfinite(z)]
+    if transform_unit is not None:
+        with np.errstate(invalid="ignore"):
+            z = np.arcsinh(z / transform_unit)
+        finite = np.arcsinh(finite / transform_unit)
+    if finite.size == 0:
+        return z, None, None, None, None, (False, False)
+    if mid is not None:
+        # robust on each side of the centre separately: η runs from -30 to 1e8, and a symmetric
+        # range would spend half the colours on values that do not occur
+        c = mid if transform_unit is None else 0.0
+        below, above = finite[finite < c], finite[finite > c]
+        lo = float(np.percentile(below, ROBUST_PERCENTILES[0])) if below.size else c
+        hi = float(np.percentile(above, ROBUST_PERCENTILES[1])) if above.size else c
+        span = max(hi - lo, 1e-6)
+        lo, hi = min(lo, c - 0.05 * span), max(hi, c + 0.05 * span)
+    else:
+        lo, hi = (float(v) for v in np.percentile(finite, ROBUST_PERCENTILES))
+        if not hi > lo:
+            lo, hi = lo - 0.5, hi + 0.5
+    clipped = (bool(finite.min() < lo - 1e-9 * abs(lo)), bool(finite.max() > hi + 1e-9 * abs(hi)))
+    if transform_unit is not None:
+        vals, texts = _asinh_ticks(lo, hi, transform_unit)
+    else:
+        vals = _nice_ticks(lo, hi)
+        texts = [_fmt_tick(v) for v in vals]
+    vals, texts = list(vals), list(texts)
+    # the ends of the colour bar say where the colours stop: "≤ lo", "≥ hi" when the data go beyond
+    for end, where, mark in ((lo, 0, "≤ "), (hi, None, "≥ ")):
+        label = _fmt_tick(end if transform_unit is None else transform_unit * np.sinh(end))
+        is_clipped = clipped[0] if mark == "≤ " else clipped[1]
+        if where == 0:
+            vals.insert(0, lo)
+            texts.insert(0, (mark if is_clipped else "") + label)
+        else:
+            vals.append(hi)
+            texts.append((mark if is_clipped else "") + label)
+    return z, lo, hi, vals, texts, clipped
+
+
 def build(comp, opts: dict, view: dict, extra_traces=()):
     """(figure, grid, messages) for a checked view; physics from the caches."""
     n = int(view["resolution"])
     grid = plane.plane_grid(comp, tuple(view["log_rho"]), tuple(view["log_T"]), n, n, **opts)
     q = quantity(view["quantity"])
     lines, messages = overlay_lines(grid, comp, view, opts)
+    # where P <= 0 (the Coulomb term beyond the ideal pressure under comparison options) no value is
+    # physical: drawn grey with a legend entry, never shaded as if it were a regime
+    unphysical = ~np.isfinite(np.asarray(grid.get("log_P"), dtype=float))
     common = dict(lines=lines, presentation=bool(view.get("presentation")), customdata=grid.regime,
-                  extra_traces=extra_traces)
-    if q.categorical:
+                  extra_traces=extra_traces,
+                  unphysical=unphysical if unphysical.any() else None,
+                  unphysical_label=UNPHYSICAL_LABEL)
+    if q.categorical and q.name == "regime":
         fig = figures.plane_figure(grid.log_rho, grid.log_T, grid.regime, z_label=q.label,
                                    categorical=[(r.label, r.colour) for r in regimes.REGIMES], **common)
+    elif q.categorical:
+        which = _shading(comp, opts, view, grid, q).astype(float)
+        which[which < 0] = np.nan
+        labels = impact.category_labels()
+        fig = figures.plane_figure(grid.log_rho, grid.log_T, which, z_label=q.label,
+                                   categorical=[(lab, _IMPACT_COLOURS[i % len(_IMPACT_COLOURS)])
+                                                for i, lab in enumerate(labels)], **common)
     else:
         scale, mid = _colours(q, view.get("colorscale", "auto"))
-        z = grid.get(q.name)
+        z = np.asarray(_shading(comp, opts, view, grid, q), dtype=float)
         if not np.any(np.isfinite(z)):
             messages["map-message"] = f"{q.label} is not available for this plane (no value anywhere in view)"
-        z_range = None
-        if mid is not None and np.any(np.isfinite(z)):
-            # symmetric about the centre and clipped to where most of the map lies, so the colours
-            # still separate near the centre (log P_rad/P_gas spans 60 dex across the default plane)
-            half = float(np.nanpercentile(np.abs(z - mid), 90))
-            half = max(half, 1e-6)
-            z_range = (mid - half, mid + half)
+        unit = ASINH_SCALES.get(q.name)
+        z, lo, hi, vals, texts, clipped = _colour_range(z, q, mid, unit)
+        notes = []
+        if any(clipped):
+            notes.append(f"colours clipped to the {ROBUST_PERCENTILES[0]:g}–{ROBUST_PERCENTILES[1]:g} % range")
+        if mid is not None and lo is not None:
+            scale = _centred_scale(scale, lo, hi, mid if unit is None else 0.0)
+        if unit is not None:
+            notes.append("signed-log scale")
+        if q.name.startswith("eps_"):
+            notes.append(f"blank below 10^{plane.EPS_FLOOR:g} erg/g/s")
         fig = figures.plane_figure(grid.log_rho, grid.log_T, z, z_label=q.label, colorscale=scale,
-                                   z_mid=mid, z_range=z_range, **common)
+                                   z_mid=None if lo is not None else mid,
+                                   z_range=(lo, hi) if lo is not None else None,
+                                   colorbar_ticks=(vals, texts) if vals is not None else None,
+                                   colorbar_note="; ".join(notes), hover_value=unit is None, **common)
     return fig, grid, messages
 
 
