@@ -86,7 +86,6 @@ def reader_panel() -> html.Div:
         dcc.Checklist(id="tracks-reader-skip", value=[], className="check",
                       options=[{"label": " skip lines that do not fit the header", "value": "skip"}]),
         html.Button("read again", id="tracks-reader-apply", n_clicks=0, className="small"),
-        dcc.Store(id="tracks-pending"),
         dcc.Store(id="tracks-reader-file"),
     ], id="tracks-reader", className="reader", style={"display": "none"})
 
@@ -510,8 +509,9 @@ def tracks_callback(triggered, store, selected, controls: dict, contents, filena
     view_data
         The map's checked view (for the composition and options).
     pending : dict, optional
-        ``{"contents": [...], "filename": [...]}``: the browser's copy of the last upload, read
-        again with the reader panel's choices.
+        ``{"contents": [...], "filename": [...]}`` to read again with the reader panel's choices;
+        default: the upload's own ``contents`` and ``filenames`` (kept in the browser while the
+        reader is shown).
     reader : dict, optional
         ``delimiter``, ``header``, ``skip`` of the reader panel and ``file``, the name it shows.
 
@@ -550,11 +550,13 @@ def tracks_callback(triggered, store, selected, controls: dict, contents, filena
             new, msg = add_files(new, contents, filenames, *co(), ignition=ignition_from_store(view_data),
                                  failures=failures)
             out["upload_message"] = msg
-            out["contents"] = None
+            # a file for the reader stays in the upload (the browser), to be read again; else clear it
+            # so that the same file can be sent again
+            out["contents"] = no_update if failures else None
             _show_reader(out, failures[0] if failures else None)
         elif kind == "tracks-reader-apply" and value:
             name = reader.get("file")
-            files = pending if isinstance(pending, dict) else {}
+            files = pending if isinstance(pending, dict) else {"contents": contents, "filename": filenames}
             names = files.get("filename") or []
             names = [names] if isinstance(names, str) else list(names)
             datas = files.get("contents") or []
@@ -574,6 +576,8 @@ def tracks_callback(triggered, store, selected, controls: dict, contents, filena
                                  read_options=options, failures=failures)
             out["upload_message"] = msg
             _show_reader(out, failures[0] if failures else None)
+            if not failures:
+                out["contents"] = None
         elif kind == "tracks-demo" and value:
             new = add_demo(new, *co())
             out["upload_message"] = ""
@@ -740,7 +744,7 @@ def register(app) -> None:
                "reader_file": Output("tracks-reader-file", "data")}
     inputs = {"contents": Input("tracks-upload", "contents"), "demo": Input("tracks-demo", "n_clicks"),
               "reader_apply": Input("tracks-reader-apply", "n_clicks"),
-              "pending": State("tracks-pending", "data"), "reader_delim": State("tracks-reader-delim", "value"),
+              "reader_delim": State("tracks-reader-delim", "value"),
               "reader_header": State("tracks-reader-header", "value"),
               "reader_skip": State("tracks-reader-skip", "value"), "reader_file": State("tracks-reader-file", "data"),
               "remove": Input({"type": "track-remove", "index": ALL}, "n_clicks"),
@@ -757,7 +761,7 @@ def register(app) -> None:
                (Output("tracks-upload", "className"), "upload busy", "upload")]
 
     @app.callback(output=outputs, inputs=inputs, running=running)
-    def _on_tracks(contents, demo, remove, visible, names, selected, filenames, store, view, reader_apply, pending,
+    def _on_tracks(contents, demo, remove, visible, names, selected, filenames, store, view, reader_apply,
                    reader_delim, reader_header, reader_skip, reader_file, **controls):
         triggered = []
         for t in ctx.triggered:
@@ -767,7 +771,7 @@ def register(app) -> None:
             cid, prop = prop_id.rsplit(".", 1)
             triggered.append((json.loads(cid) if cid.startswith("{") else cid, prop, t.get("value")))
         try:
-            return tracks_callback(triggered, store, selected, controls, contents, filenames, view, pending,
+            return tracks_callback(triggered, store, selected, controls, contents, filenames, view, None,
                                    {"delimiter": reader_delim, "header": reader_header, "skip": reader_skip,
                                     "file": reader_file})
         except Exception:
@@ -776,11 +780,6 @@ def register(app) -> None:
             out["upload_message"] = GENERIC_ERROR
             return out
 
-    # the browser keeps a copy of the last upload, so a file can be read again with other choices
-    app.clientside_callback(
-        """function(c, f){ if (!c) { return window.dash_clientside.no_update; }
-                           return {contents: c, filename: f}; }""",
-        Output("tracks-pending", "data"), Input("tracks-upload", "contents"), State("tracks-upload", "filename"))
     # clicking a point of a track on the map selects the track and pins that row
     app.clientside_callback(
         "function(c){ return window.dash_clientside.thermoplane.pinTrackRow(c); }",
