@@ -310,7 +310,7 @@ def _legend_name(name: str, limit: int = 26) -> str:
 
 
 def track_traces(track_id: str, name: str, colour: str, d: dict, *, colour_by: bool = False,
-                 presentation: bool = False) -> list[go.Scatter]:
+                 presentation: bool = False, labelled: bool = True) -> list[go.Scatter]:
     """Traces of one track over the map: a white halo, the line, start and end, labelled crossings.
 
     Parameters
@@ -329,6 +329,9 @@ def track_traces(track_id: str, name: str, colour: str, d: dict, *, colour_by: b
         (beside the map's own; one track at a time).
     presentation : bool
         Thicker lines, larger markers and text, like the map's lines in presentation mode.
+    labelled : bool
+        Write "start", "end" and the crossings' short labels on the map (markers and hover texts
+        are drawn either way).
     """
     big = 1.8 if presentation else 1.0
     x = np.asarray(d["x"], dtype=float)
@@ -372,7 +375,8 @@ def track_traces(track_id: str, name: str, colour: str, d: dict, *, colour_by: b
     if ok.size:
         ends = [ok[0], ok[-1]]
         traces.append(go.Scatter(
-            x=x[ends], y=y[ends], mode="markers+text", text=["start", "end"], textposition="top center",
+            x=x[ends], y=y[ends], mode="markers+text" if labelled else "markers", text=["start", "end"],
+            textposition="top center",
             textfont=dict(color=colour, size=12 * big), legendgroup=meta, showlegend=False, meta=meta + ":ends",
             marker=dict(symbol=["circle", "square"], size=11 * big, color=colour, line=dict(color="white", width=2)),
             hovertemplate=f"<b>{name}</b>: %{{text}} (row %{{customdata}})<extra></extra>",
@@ -386,7 +390,8 @@ def track_traces(track_id: str, name: str, colour: str, d: dict, *, colour_by: b
             return f"<br>composition ({whose}): X = {c['X']:.3f}, Y = {c['Y']:.3f}, Z = {c['Z']:.3f}"
 
         traces.append(go.Scatter(
-            x=[c["log_rho"] for c in cr], y=[c["log_T"] for c in cr], mode="markers+text", legendgroup=meta,
+            x=[c["log_rho"] for c in cr], y=[c["log_T"] for c in cr], mode="markers+text" if labelled else "markers",
+            legendgroup=meta,
             showlegend=False, meta=meta + ":crossings",
             text=[c.get("short") or c["label"] for c in cr],
             textposition=["middle right" if i % 2 == 0 else "middle left" for i in range(len(cr))],

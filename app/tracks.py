@@ -53,7 +53,8 @@ ILLUSTRATIVE = "illustrative, computed by Thermoplane"
 #: Track colours: bright, saturated colours that no line of the map uses (the lines are dark:
 #: app.figures.LINE_STYLES), so a track is never mistaken for a boundary; each is drawn over a
 #: white halo. Our own choice, checked against the line colours in tests/app/test_figures.py.
-TRACK_COLOURS = ("#E6007E", "#00A6D6", "#FF3B3B", "#7CC000", "#A05CFF", "#F5C400", "#00B3A1", "#FF6FAE")
+TRACK_COLOURS = ("#E6007E", "#00A6D6", "#FF3B3B", "#7CC000", "#A05CFF", "#F5C400", "#00B3A1", "#FF6FAE",
+                 "#00D084", "#6E7BFF", "#C000C0", "#FFB000")
 #: Rows per track kept in the browser (see the module notes).
 MAX_STORED_ROWS = 20_000
 #: Numbers per track kept in the browser.

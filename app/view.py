@@ -247,7 +247,10 @@ def overlay_traces(store, comp, opts: dict, colour_by=(), *, presentation: bool 
             continue
         traces += figures.track_traces(track["id"], track["name"], track["colour"], d,
                                        colour_by="age" in (colour_by or ()) and track["id"] == selected,
-                                       presentation=presentation)
+                                       presentation=presentation,
+                                       # words on the map for the selected track only: with many tracks,
+                                       # the others keep their markers (and hover texts) but no labels
+                                       labelled=len(visible) == 1 or track["id"] == selected)
     return traces
 
 

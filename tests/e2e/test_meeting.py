@@ -172,7 +172,7 @@ def test_readable_maps_unphysical_region_and_messages(server_url, page):
     bar = page.evaluate("""() => { const gd = document.querySelector('#plane-graph .js-plotly-plot');
         const h = gd.data.find(d => d.type === 'heatmap'); return [h.colorbar.title.text, Array.from(h.colorbar.ticktext)]; }""")
     assert "signed-log" in bar[0] and "0" in bar[1]
-    legend = page.inner_text("#plane-graph .legend")
+    legend = page.text_content("#plane-graph .legend")
     assert "no physical value: P ≤ 0 with these options" in legend
     grey = page.evaluate("""() => { const gd = document.querySelector('#plane-graph .js-plotly-plot');
         const t = gd.data.find(d => d.meta === 'unphysical'); const z = t.z; return !!t; }""")
@@ -203,7 +203,7 @@ def test_readable_maps_unphysical_region_and_messages(server_url, page):
 def test_which_physics_matters_map(server_url, page):
     page.goto(server_url + "?resolution=60&quantity=impact_which")
     _ready(page)
-    legend = page.inner_text("#plane-graph .legend")
+    legend = page.text_content("#plane-graph .legend")
     for words in ("Coulomb", "Fermi–Dirac vs classical electrons", "Saha vs full ionization", "pairs",
                   "none above 1 %"):
         assert words in legend
@@ -239,8 +239,11 @@ def test_clutter_small_screen_many_tracks_presentation(server_url, browser, tmp_
     assert not {t["colour"].lower() for t in tracks} & set(lines)
     # the legend leaves the plot most of the figure
     sizes = page.evaluate("""() => { const gd = document.querySelector('#plane-graph .js-plotly-plot');
-        const lg = gd.querySelector('.legend').getBoundingClientRect(); const plot = gd.querySelector('.nsewdrag').getBoundingClientRect();
+        const lg = gd.querySelector('.legend .bg').getBoundingClientRect(); const plot = gd.querySelector('.nsewdrag').getBoundingClientRect();
         return [lg.height, plot.height, gd.getBoundingClientRect().height]; }""")
+    page.evaluate("() => window.scrollTo(0, 0)")
+    page.wait_for_timeout(300)
+    screenshot(page, "meeting_small_screen_legend")
     assert sizes[0] < 0.2 * sizes[2] and sizes[1] > 0.6 * sizes[2]
     # the hover readout sits clear of the next panel
     page.mouse.move(*_centre(page))
