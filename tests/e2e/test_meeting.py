@@ -133,8 +133,12 @@ def test_own_composition_crossings_grid_pin_and_exports(server_url, page, tmp_pa
     # item 1: click a point of the track: its row is pinned; the map takes that row's composition
     deg = [r for r in rows if r[0].startswith("electron degeneracy")][0]
     row = int(deg[1].split("–")[0])
-    page.fill("#tracks-pin-row", str(row))
-    page.press("#tracks-pin-row", "Enter")
+    # clicking the crossing's marker on the map pins its row
+    page.evaluate("() => window.scrollTo(0, 0)")
+    box = page.locator("#plane-graph .nsewdrag").first.bounding_box()
+    lr, lt = float(deg[2]), float(deg[3])
+    page.mouse.click(box["x"] + (lr + 10) / 20 * box["width"], box["y"] + (1 - (lt - 3) / 7) * box["height"])
+    page.wait_for_function(f"() => document.querySelector('#tracks-pin-row').value === '{row}'", timeout=TIMEOUT)
     page.click("#tracks-pin-apply")
     page.wait_for_selector("#tracks-pin-message:has-text('The map now uses row')", timeout=TIMEOUT)
     x_expected = max(0.0, 0.70 - 0.02 * row)
