@@ -188,7 +188,7 @@ def tracks_results() -> html.Section:
                   html.Button("map at this row's composition", id="tracks-pin-apply", n_clicks=0, className="small",
                               title="set the panel's X, Y, Z to the pinned row's own composition, so the lines "
                                     "on the map are drawn for it")], className="field-row pin-row"),
-        html.Div(id="tracks-pin-message", className="message", role="status"),
+        html.Div(id="tracks-pin-message", className="note", role="status"),
         html.Div([html.Label([html.Span("along the track", className="field-label"),
                               dcc.Dropdown(id="tracks-quantity", value="beta", clearable=False, className="dropdown",
                                            options=[{"label": v[0], "value": k} for k, v in QUANTITIES.items()])],

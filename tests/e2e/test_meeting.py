@@ -29,8 +29,8 @@ CROSSING_TEXT = """() => { const gd = document.querySelector('#plane-graph .js-p
                 .map(d => Array.from(d.text || [])); }"""
 
 # log10 rho rises and X falls along the track: the centre of a made-up star burning hydrogen
-UNITS_TRACK = "m/Msun   log10(rho/g cm^-3)   log10(T/K)   central hydrogen   central helium\n" + "".join(
-    f"{1.0:.2f} {1.5 + 0.1 * i:.3f} {7.10 + 0.012 * i:.4f} {max(0.0, 0.70 - 0.02 * i):.3f} "
+UNITS_TRACK = "m/Msun   age [s]   log10(rho/g cm^-3)   log10(T/K)   central hydrogen   central helium\n" + "".join(
+    f"{1.0:.2f} {1.21382e16 + 1e15 * i:.6e} {1.5 + 0.1 * i:.3f} {7.10 + 0.012 * i:.4f} {max(0.0, 0.70 - 0.02 * i):.3f} "
     f"{min(0.98, 0.28 + 0.02 * i):.3f}\n" for i in range(50))
 SHEET = "sep=;\nage;rho;T;\n" + "".join(f"{i};{(10 ** (1 + 0.1 * i)):.6e};{(1e7 * 10 ** (0.01 * i)):.6e};\n"
                                         .replace(".", ",") for i in range(30))
@@ -112,6 +112,8 @@ def test_own_composition_crossings_grid_pin_and_exports(server_url, page, tmp_pa
     labels = [r[0] for r in rows]
     assert "electron degeneracy (η = 0)" in labels
     assert all("this track's own" in r[5] for r in rows)
+    # item 8: a large parameter reads as 2.61382e+16, not as a string of digits
+    assert all(r[4].endswith("e+16") and "000000" not in r[4] for r in rows)
     # item 2: ignition crossings at the map's levels are in the report
     assert any(label.startswith("ε_pp = 10³") for label in labels)
     # crossing markers are labelled on the track
@@ -158,6 +160,8 @@ def test_own_composition_crossings_grid_pin_and_exports(server_url, page, tmp_pa
             const w = (x0 - xs[k]) / ((xs[k + 1] - xs[k]) || 1); best = Math.min(best, Math.abs(ys[k] + w * (ys[k + 1] - ys[k]) - y0)); }}
         }} return best; }}""")
     assert gap < 0.05
+    page.evaluate("() => window.scrollTo(0, 0)")
+    page.wait_for_timeout(300)
     screenshot(page, "meeting_pinned_row")
 
     # item 8: the HTML export carries the tracks
