@@ -73,6 +73,18 @@ def _positive_float(text: str) -> float:
     return value
 
 
+def _level_list(text: str) -> tuple[float, ...]:
+    if not text.strip():
+        return ()
+    out = []
+    for part in text.replace(";", ",").split(","):
+        if part.strip():
+            out.append(_positive_float(part.strip()))
+    if len(out) > 12:
+        raise argparse.ArgumentTypeError(f"at most 12 levels, got {len(out)}")
+    return tuple(out)
+
+
 def cmd_serve(args) -> int:
     from .main import create_app
     if args.host not in ("127.0.0.1", "localhost", "::1"):
@@ -140,23 +152,38 @@ def cmd_track(args) -> int:
         mapping.units = args.units
     if args.age_col is not None:
         mapping.age_col = args.age_col or None
+    for role in ("X", "Y", "Z"):
+        value = getattr(args, f"{role}_col")
+        if value is not None:
+            setattr(mapping, f"{role}_col", value or None)
+            mapping.nuclide_cols = {}             # X/Y/Z columns chosen: they give the composition
     if mapping.rho_col is None or mapping.T_col is None:
         notes = "; ".join(mapping.ambiguous) or "no density or temperature column found"
         raise CliError(f"{notes}; give --rho-col and --T-col (columns: {', '.join(map(str, df.columns))})")
-    enriched, crossings, track = tracks.enrich(df, mapping, comp, **opts)
+    processes = args.processes.split(",") if args.processes else ["pp", "triple_alpha"]
+    ignition = [(p.strip(), level) for p in processes if p.strip() for level in args.eps_levels]
+    enriched, crossings, track = tracks.enrich(df, mapping, comp, ignition=ignition, **opts)
     records = tracks.crossing_records(crossings)
     if args.output:
         with open(args.output, "w", encoding="utf-8", newline="") as fh:
             fh.write(tracks.safe_csv(enriched))
     if args.json:
         out = {"rows": len(df), "bad_rows": [int(i) for i in track.bad_rows],
-               "crossings": [{k: r[k] for k in ("boundary", "row", "log_rho", "log_T", "age")} for r in records]}
+               "composition_columns": {"X": mapping.X_col, "Y": mapping.Y_col, "Z": mapping.Z_col,
+                                       "nuclides": mapping.nuclide_cols or None},
+               "crossings": [{k: r[k] for k in ("boundary", "label", "row", "log_rho", "log_T", "age", "X", "Y", "Z",
+                                                 "composition")} for r in records]}
         print(json.dumps(out, indent=2))
     else:
         print(f"{args.file}: {len(df)} rows, {len(track.bad_rows)} bad; density {mapping.rho_col!r} "
               f"({'log10' if mapping.rho_log else 'linear'}, {mapping.units}), temperature {mapping.T_col!r} "
               f"({'log10' if mapping.T_log else 'linear'}, K), age {mapping.age_col or 'row number'!r}")
-        print(f"composition: {comp!r}")
+        own = [c for c in mapping.composition_cols]
+        if own:
+            print(f"composition: the track's own, per row (columns {', '.join(own)}); "
+                  f"metals split as the {args.metals!r} mixture unless nuclide columns give them")
+        else:
+            print(f"composition: {comp!r} for every row (no X, Y, Z or nuclide column; see --X-col)")
         for note in mapping.ambiguous:
             print(f"note: {note}")
         for i in track.bad_rows[:10]:
@@ -167,10 +194,11 @@ def cmd_track(args) -> int:
             print("no boundary crossed")
         else:
             print(f"{len(records)} crossing(s):")
-            print(f"  {'boundary':<36} {'rows':>13} {'log rho':>9} {'log T':>8} {'age':>12}")
+            print(f"  {'boundary':<36} {'rows':>13} {'log rho':>9} {'log T':>8} {'age':>12}  composition used")
             for r in records:
                 rows = f"{r['row']}-{r['row_after']}"
-                print(f"  {r['label']:<36} {rows:>13} {r['log_rho']:>9.4f} {r['log_T']:>8.4f} {_fmt_age(r['age']):>12}")
+                print(f"  {r['label']:<36} {rows:>13} {r['log_rho']:>9.4f} {r['log_T']:>8.4f} {_fmt_age(r['age']):>12}"
+                      f"  {tracks.composition_text(r)}")
         if args.output:
             print(f"wrote {args.output}", file=sys.stderr)
     return 0
@@ -214,6 +242,16 @@ def build_parser() -> argparse.ArgumentParser:
                                                           "default: detected, else cgs")
     p.add_argument("--age-col", dest="age_col", help="age or model-number column (default: detected; "
                                                      "'' for the row number)")
+    for role, what in (("X", "hydrogen"), ("Y", "helium"), ("Z", "metal")):
+        p.add_argument(f"--{role}-col", dest=f"{role}_col",
+                       help=f"column of the {what} mass fraction per row (default: detected; '' for none); "
+                            "any two of X, Y, Z give the third")
+    p.add_argument("--eps-levels", dest="eps_levels", type=_level_list, default=(1.0, 1e3),
+                   help="energy generation rates (erg g^-1 s^-1) whose ignition contours are reported as "
+                        "crossings, comma separated (default 1,1e3, as on the map)")
+    p.add_argument("--processes", help="burning processes for the ignition crossings, comma separated "
+                                       "(default pp,triple_alpha, as on the map; from "
+                                       "pp, cno, triple_alpha, carbon)")
     _add_composition(p)
     _add_physics(p)
     p.add_argument("-o", "--output", help="write the table with the computed columns to this CSV file")

@@ -38,7 +38,39 @@ LINE_STYLES = {
     "mass": ("#444444", "longdashdot"),
     "nu_ignition": ("#990000", "solid"),
     "capture": ("#1c4587", "dashdot"),
+    # one style per burning process (colour and dash both differ)
+    "ignition_pp": ("#b45f06", "longdash"),
+    "ignition_cno": ("#8e0152", "dash"),
+    "ignition_triple_alpha": ("#7a5a00", "dashdot"),
+    "ignition_carbon": ("#3d3d8f", "longdashdot"),
 }
+# styles for processes added later: dark colours the track palette never uses
+_EXTRA_IGNITION = (("#5b3a29", "dot"), ("#1f5f5b", "longdash"), ("#6b2d5c", "dashdot"))
+
+
+def ignition_style(process: str) -> str:
+    """Key into :data:`LINE_STYLES` of a burning process's ignition contours (each its own style)."""
+    key = f"ignition_{process}"
+    if key not in LINE_STYLES:
+        LINE_STYLES[key] = _EXTRA_IGNITION[sum(map(ord, process)) % len(_EXTRA_IGNITION)]
+    return key
+
+
+_SHORT = {"pp": "pp", "cno": "CNO", "triple_alpha": "3α", "carbon": "C+C"}
+_SUPERSCRIPT = str.maketrans("0123456789-", "⁰¹²³⁴⁵⁶⁷⁸⁹⁻")
+
+
+def level_text(level: float) -> str:
+    """1, 10³, 2.5e+04 -> short text for a label."""
+    e = np.log10(level)
+    if e == round(e) and abs(e) >= 2:
+        return "10" + str(int(round(e))).translate(_SUPERSCRIPT)
+    return f"{level:g}"
+
+
+def ignition_label(process: str, level: float) -> str:
+    """"ε_pp = 10³" for an ignition contour of ``process`` at ``level`` erg g^-1 s^-1."""
+    return f"ε_{_SHORT.get(process, process)} = {level_text(level)}"
 
 
 @dataclass
@@ -72,15 +104,23 @@ def _overlap(a, b) -> float:
     return max(dx, 0.0) * max(dy, 0.0)
 
 
-def place_labels(lines, x_range, y_range, font: float) -> list[tuple[float, float] | None]:
-    """A label point on each line, inside the view, avoiding earlier labels.
+def place_labels(lines, x_range, y_range, font: float, avoid=()) -> list[tuple[float, float] | None]:
+    """A label point on each line, inside the view, avoiding earlier labels and the ``avoid`` points.
 
     Greedy: for each line in turn, the first candidate position along its
     visible part (72 %, 50 %, 85 %, ... of the way) whose estimated text box
-    neither leaves the plot nor overlaps a label already placed; if none is
-    free, the candidate with the least overlap. None for a line not in view.
+    neither leaves the plot nor overlaps a label already placed or the box
+    around a point of ``avoid`` ((log rho, log T) of track ends and crossing
+    markers, with their text); if none is free, the candidate with the least
+    overlap. None for a line not in view.
     """
+    wx0 = x_range[1] - x_range[0]
+    wy0 = y_range[1] - y_range[0]
     placed, out = [], []
+    for ax, ay in avoid:
+        if np.isfinite(ax) and np.isfinite(ay):
+            fx, fy = (ax - x_range[0]) / wx0, (ay - y_range[0]) / wy0
+            placed.append((fx - 40 / _PLOT_PX[0], fy - 14 / _PLOT_PX[1], fx + 40 / _PLOT_PX[0], fy + 34 / _PLOT_PX[1]))
     wx = x_range[1] - x_range[0]
     wy = y_range[1] - y_range[0]
     for line in lines:
@@ -116,7 +156,8 @@ def plane_figure(log_rho: np.ndarray, log_T: np.ndarray, z: np.ndarray, *, z_lab
                  hover_text: np.ndarray | None = None,
                  categorical: list[tuple[str, str]] | None = None,
                  customdata: np.ndarray | None = None,
-                 extra_traces=()) -> go.Figure:
+                 extra_traces=(), colorbar_ticks=None, colorbar_note: str = "", hover_value: bool = True,
+                 unphysical: np.ndarray | None = None, unphysical_label: str = "no physical value") -> go.Figure:
     """The density–temperature map: a shaded field with labelled lines over it.
 
     Parameters
@@ -142,6 +183,16 @@ def plane_figure(log_rho: np.ndarray, log_T: np.ndarray, z: np.ndarray, *, z_lab
         Drawn over everything else (the hook for stellar tracks).
     presentation : bool
         Larger type and thicker lines, for a projector.
+    colorbar_ticks : (values, texts), optional
+        Where the colour bar's ticks go and what they say (signed-log scales, "≥ 3.2" at a clipped end).
+    colorbar_note : str
+        A second, smaller line under the colour bar's title ("colours clipped ...").
+    hover_value : bool
+        Show the shaded value in the plot's own hover box (False when ``z`` is transformed:
+        the readout under the map shows the real value).
+    unphysical : 2-D bool array, optional
+        Pixels with no physical value, drawn grey on top with a legend entry ``unphysical_label``
+        and a hover box that says why.
     """
     font = 20 if presentation else 13
     line_scale = 2.0 if presentation else 1.0
@@ -161,8 +212,12 @@ def plane_figure(log_rho: np.ndarray, log_T: np.ndarray, z: np.ndarray, *, z_lab
                                marker=dict(size=18 if presentation else 14, color=colour, symbol="square"),
                                showlegend=True, hoverinfo="skip"))
     else:
-        heat.update(colorscale=colorscale,
-                    colorbar=dict(title=dict(text=z_label, side="right"), thickness=22 if presentation else 16))
+        bar_title = z_label + (f"<br><span style='font-size:0.8em'>{colorbar_note}</span>" if colorbar_note else "")
+        bar = dict(title=dict(text=bar_title, side="right"), thickness=22 if presentation else 16)
+        if colorbar_ticks is not None:
+            bar.update(tickmode="array", tickvals=list(map(float, colorbar_ticks[0])),
+                       ticktext=list(colorbar_ticks[1]))
+        heat.update(colorscale=colorscale, colorbar=bar)
         if z_range is not None:
             heat.update(zmin=z_range[0], zmax=z_range[1])
         elif z_mid is not None:
@@ -173,14 +228,34 @@ def plane_figure(log_rho: np.ndarray, log_T: np.ndarray, z: np.ndarray, *, z_lab
         heat.update(text=hover_text, hovertemplate="%{text}<extra></extra>")
     elif categorical:
         heat.update(hovertemplate="log ρ = %{x:.2f}<br>log T = %{y:.2f}<extra></extra>")
-    else:
+    elif hover_value:
         heat.update(hovertemplate="log ρ = %{x:.2f}<br>log T = %{y:.2f}<br>"
                     + z_label + " = %{z:.4g}<extra></extra>")
+    else:
+        heat.update(hovertemplate="log ρ = %{x:.2f}<br>log T = %{y:.2f}<br>" + z_label
+                    + ": see the readout under the map<extra></extra>")
     traces.append(dict(type="heatmap", **heat))
+    if unphysical is not None:
+        grey = "#9e9e9e"
+        traces.append(dict(type="heatmap", x=heat["x"], y=heat["y"],
+                           z=np.where(np.asarray(unphysical, bool), 1.0, np.nan).astype(np.float32),
+                           colorscale=[[0, grey], [1, grey]], showscale=False, zsmooth=False, hoverongaps=False,
+                           name=unphysical_label, meta="unphysical",
+                           hovertemplate="log ρ = %{x:.2f}<br>log T = %{y:.2f}<br>" + unphysical_label
+                           + "<extra></extra>"))
+        traces.append(dict(type="scatter", x=[None], y=[None], mode="markers", name=unphysical_label,
+                           marker=dict(size=14, color=grey, symbol="square"), showlegend=True, hoverinfo="skip"))
 
     x_range = (float(np.min(log_rho)), float(np.max(log_rho)))
     y_range = (float(np.min(log_T)), float(np.max(log_T)))
-    spots = place_labels(lines, x_range, y_range, font)
+    avoid = []
+    for tr in extra_traces:                     # track ends and crossing markers keep their place
+        meta = str(getattr(tr, "meta", None) or (tr.get("meta") if isinstance(tr, dict) else "") or "")
+        if meta.endswith((":ends", ":crossings")):
+            xs = np.asarray(tr["x"] if isinstance(tr, dict) else tr.x, dtype=float)
+            ys = np.asarray(tr["y"] if isinstance(tr, dict) else tr.y, dtype=float)
+            avoid += list(zip(xs, ys))
+    spots = place_labels(lines, x_range, y_range, font, avoid=avoid)
     for line, where in zip(lines, spots):
         colour, dash = LINE_STYLES.get(line.style or line.key, ("#111111", "solid"))
         x = np.asarray(line.log_rho, dtype=float)
@@ -208,8 +283,10 @@ def plane_figure(log_rho: np.ndarray, log_T: np.ndarray, z: np.ndarray, *, z_lab
                     t=(50 if title else 20) + ((70 if presentation else 40) if categorical else 0),
                     b=70 if presentation else 60),
         plot_bgcolor="white", paper_bgcolor="white",
+        # one legend row or two above the plot; with many tracks it scrolls instead of eating the map
         legend=dict(orientation="h", yanchor="bottom", y=1.02, x=0, bgcolor="rgba(255,255,255,0.8)",
-                    font=dict(size=font - 4 if presentation else font)),
+                    font=dict(size=font - 4 if presentation else font - 1), maxheight=0.14, entrywidthmode="pixels",
+                    itemwidth=30),
         uirevision="plane",
     )
     return fig
@@ -230,8 +307,13 @@ def graph_config(filename: str = "thermoplane-map", scale: int = 3) -> dict:
 TRACK_PARAMETER_SCALE = "Cividis"
 
 
-def track_traces(track_id: str, name: str, colour: str, d: dict, *, colour_by: bool = False) -> list[go.Scatter]:
-    """Traces of one track over the map: a white halo, the line, start and end, crossings.
+def _legend_name(name: str, limit: int = 26) -> str:
+    return name if len(name) <= limit else name[:limit - 1] + "…"
+
+
+def track_traces(track_id: str, name: str, colour: str, d: dict, *, colour_by: bool = False,
+                 presentation: bool = False, labelled: bool = True) -> list[go.Scatter]:
+    """Traces of one track over the map: a white halo, the line, start and end, labelled crossings.
 
     Parameters
     ----------
@@ -240,19 +322,27 @@ def track_traces(track_id: str, name: str, colour: str, d: dict, *, colour_by: b
     d : dict
         ``x``, ``y`` (log rho, log T; NaN on rows not evaluated), ``row``,
         ``age`` (or None), ``regime`` (words), ``beta``, ``eta`` per drawn
-        point; ``crossings`` (records with label, row, row_after, log_rho,
-        log_T, age); ``age_name`` (the parameter's column, or None).
+        point; ``crossings`` (records with label, short, row, row_after,
+        log_rho, log_T, age, X, Y, Z, composition); ``age_name`` (the
+        parameter's column, or None); ``composition`` (per drawn point text,
+        or None when the track has no composition of its own).
     colour_by : bool
         Colour the points by the parameter (age, else row) with a colour bar
         (beside the map's own; one track at a time).
+    presentation : bool
+        Thicker lines, larger markers and text, like the map's lines in presentation mode.
+    labelled : bool
+        Write "start", "end" and the crossings' short labels on the map (markers and hover texts
+        are drawn either way).
     """
+    big = 1.8 if presentation else 1.0
     x = np.asarray(d["x"], dtype=float)
     y = np.asarray(d["y"], dtype=float)
     row = np.asarray(d["row"])
     age = d.get("age")
     has_age = age is not None
     age = np.asarray(age, dtype=float) if has_age else row.astype(float)
-    custom = np.empty((x.size, 6), dtype=object)
+    custom = np.empty((x.size, 7), dtype=object)
     custom[:, 0] = row
     custom[:, 1] = np.where(np.isfinite(age), np.char.mod("%.5g", np.nan_to_num(age)), "—")
     with np.errstate(invalid="ignore"):
@@ -261,44 +351,59 @@ def track_traces(track_id: str, name: str, colour: str, d: dict, *, colour_by: b
     custom[:, 4] = d["regime"]
     custom[:, 5] = [f"β = {b:.4f}, η = {e:.3g}" if np.isfinite(b) else "not evaluated"
                     for b, e in zip(np.asarray(d["beta"], float), np.asarray(d["eta"], float))]
+    comp_rows = d.get("composition")
+    custom[:, 6] = comp_rows if comp_rows is not None else ""
     age_word = d.get("age_name") or "parameter"
     hover = (f"<b>{name}</b><br>row %{{customdata[0]}}"
              + (f", {age_word} = %{{customdata[1]}}" if has_age else "")
              + "<br>ρ = %{customdata[2]} g cm⁻³, T = %{customdata[3]} K<br>%{customdata[4]}<br>%{customdata[5]}"
-             "<extra></extra>")
+             + ("<br>own composition: %{customdata[6]}" if comp_rows is not None else "")
+             + "<extra></extra>")
     meta = f"track:{track_id}"
-    traces = [go.Scatter(x=x, y=y, mode="lines", line=dict(color="rgba(255,255,255,0.85)", width=6),
+    traces = [go.Scatter(x=x, y=y, mode="lines", line=dict(color="rgba(255,255,255,0.85)", width=6 * big),
                          hoverinfo="skip", showlegend=False, meta=meta + ":halo", connectgaps=False)]
-    line = dict(x=x, y=y, name=name, meta=meta, customdata=custom, hovertemplate=hover, connectgaps=False,
-                legendgroup=meta, showlegend=True)
+    line = dict(x=x, y=y, name=_legend_name(name), meta=meta, customdata=custom, hovertemplate=hover,
+                connectgaps=False, legendgroup=meta, showlegend=True)
     if colour_by:
-        line.update(mode="lines+markers", line=dict(color=colour, width=1.5),
-                    marker=dict(size=5, color=age, colorscale=TRACK_PARAMETER_SCALE, showscale=True,
-                                colorbar=dict(title=dict(text=f"{name}: {age_word if has_age else 'row'}",
+        line.update(mode="lines+markers", line=dict(color=colour, width=1.5 * big),
+                    marker=dict(size=5 * big, color=age, colorscale=TRACK_PARAMETER_SCALE, showscale=True,
+                                colorbar=dict(title=dict(text=f"{_legend_name(name)}: {age_word if has_age else 'row'}",
                                                          side="right"),
                                               x=1.13, len=0.7, thickness=12)))
     else:
-        line.update(mode="lines", line=dict(color=colour, width=2.5))
+        line.update(mode="lines", line=dict(color=colour, width=2.5 * big))
     traces.append(go.Scatter(**line))
     ok = np.flatnonzero(np.isfinite(x) & np.isfinite(y))
     if ok.size:
         ends = [ok[0], ok[-1]]
         traces.append(go.Scatter(
-            x=x[ends], y=y[ends], mode="markers+text", text=["start", "end"], textposition="top center",
-            textfont=dict(color=colour, size=12), legendgroup=meta, showlegend=False, meta=meta + ":ends",
-            marker=dict(symbol=["circle", "square"], size=11, color=colour, line=dict(color="white", width=2)),
+            x=x[ends], y=y[ends], mode="markers+text" if labelled else "markers", text=["start", "end"],
+            textposition="top center",
+            textfont=dict(color=colour, size=12 * big), legendgroup=meta, showlegend=False, meta=meta + ":ends",
+            marker=dict(symbol=["circle", "square"], size=11 * big, color=colour, line=dict(color="white", width=2)),
             hovertemplate=f"<b>{name}</b>: %{{text}} (row %{{customdata}})<extra></extra>",
             customdata=row[ends]))
     cr = d.get("crossings") or []
     if cr:
+        def comp_text(c):
+            if c.get("X") is None:
+                return ""
+            whose = "the track's own" if c.get("composition") == "track" else "the panel's"
+            return f"<br>composition ({whose}): X = {c['X']:.3f}, Y = {c['Y']:.3f}, Z = {c['Z']:.3f}"
+
         traces.append(go.Scatter(
-            x=[c["log_rho"] for c in cr], y=[c["log_T"] for c in cr], mode="markers", legendgroup=meta,
+            x=[c["log_rho"] for c in cr], y=[c["log_T"] for c in cr], mode="markers+text" if labelled else "markers",
+            legendgroup=meta,
             showlegend=False, meta=meta + ":crossings",
-            marker=dict(symbol="diamond", size=9, color="white", line=dict(color=colour, width=2)),
+            text=[c.get("short") or c["label"] for c in cr],
+            textposition=["middle right" if i % 2 == 0 else "middle left" for i in range(len(cr))],
+            textfont=dict(color="#1b1b1b", size=11 * big),
+            marker=dict(symbol="diamond", size=9 * big, color="white", line=dict(color=colour, width=2)),
             customdata=[[c["label"], f"{c['row']}–{c['row_after']}",
-                         "" if c.get("age") is None else f", {age_word} = {c['age']:.5g}"] for c in cr],
+                         "" if c.get("age") is None else f", {age_word} = {c['age']:.5g}", comp_text(c)]
+                        for c in cr],
             hovertemplate=f"<b>{name}</b> crosses %{{customdata[0]}}<br>between rows %{{customdata[1]}}"
-                          "%{customdata[2]}<br>log ρ = %{x:.3f}, log T = %{y:.3f}<extra></extra>"))
+                          "%{customdata[2]}<br>log ρ = %{x:.3f}, log T = %{y:.3f}%{customdata[3]}<extra></extra>"))
     return traces
 
 

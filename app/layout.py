@@ -11,11 +11,13 @@ from __future__ import annotations
 from dash import dash_table, dcc, html
 
 from .. import physics as ph
-from ..physics import burning, plane, regimes
+from ..physics import burning, impact, plane, regimes
 
 from . import figures
 from .callbacks.layers import NU_PROCESS_CATEGORIES
-from .state import COLOR_CHOICES, DEFAULT_VIEW, UI_RESOLUTION, view_to_controls
+from .state import COLOR_CHOICES, DEFAULT_VIEW, MAP_QUANTITIES, UI_RESOLUTION, view_to_controls
+from .callbacks.point import state_grid
+from .view import ASINH_SCALES
 
 #: One-line explanations of the physics options (shown on hover).
 OPTION_HELP = {
@@ -32,8 +34,11 @@ OPTION_LABELS = {"fermi": "Fermi–Dirac", "classical": "classical", "saha": "Sa
 
 
 def _number(id_, value, step=0.01, min_=0.0, max_=1.0, label="", title=""):
+    """A number field. No min, max or step in the browser: a value the browser finds out of range
+    would reach the server as empty, so the callbacks check the range and say what is allowed."""
+    del step, min_, max_
     return html.Label([html.Span(label, className="field-label"),
-                       dcc.Input(id=id_, type="number", value=value, step=step, min=min_, max=max_,
+                       dcc.Input(id=id_, type="number", value=value, step="any",
                                  debounce=True, className="number-input")], className="field", title=title)
 
 
@@ -107,7 +112,7 @@ def map_controls_panel(c: dict) -> html.Section:
         html.H3("Map"),
         html.Label([html.Span("shaded quantity", className="field-label"),
                     dcc.Dropdown(id="map-quantity", value=c["quantity"], clearable=False, className="dropdown",
-                                 options=[{"label": q.label, "value": q.name} for q in plane.QUANTITIES])],
+                                 options=[{"label": q.label, "value": q.name} for q in MAP_QUANTITIES])],
                    className="field"),
         html.Label([html.Span("colour scale", className="field-label"),
                     dcc.Dropdown(id="map-colorscale", value=c["colorscale"], clearable=False, className="dropdown",
@@ -249,7 +254,7 @@ def point_panel() -> html.Section:
                   html.Span("CSV", className="clip-label")], className="point-bar"),
         html.Div("Click the map to pin a point.", id="point-heading", className="readout"),
         _message("point-message"),
-        html.Div(id="point-table"),
+        html.Div(state_grid(), id="point-table"),
         html.Details([html.Summary("as text"),
                       dcc.Textarea(id="point-json", readOnly=True, className="copy-text"),
                       dcc.Textarea(id="point-csv", readOnly=True, className="copy-text")]),
@@ -261,7 +266,7 @@ def map_area() -> html.Div:
         dcc.Loading(dcc.Graph(id="plane-graph", config=figures.graph_config(), className="plane-graph",
                               style={"height": "72vh", "minHeight": "480px"}),
                     type="circle", delay_show=250, id="plane-loading"),
-        html.Div("Hover over the map to read a point.", id="hover-readout", className="readout hover"),
+        html.Div("Hover over the map to read a point.", id="hover-readout", className="readout hover-line"),
         tracks_results(),
         point_panel(),
         about_panel(),
@@ -270,8 +275,11 @@ def map_area() -> html.Div:
 
 def _labels() -> dict:
     return {"regimes": [r.label for r in regimes.REGIMES],
-            "quantities": {q.name: q.label for q in plane.QUANTITIES},
-            "categories": {"nu_process": [label for label, _ in NU_PROCESS_CATEGORIES]}}
+            "quantities": {q.name: q.label for q in MAP_QUANTITIES},
+            "categories": {"nu_process": [label for label, _ in NU_PROCESS_CATEGORIES]},
+            # shadings drawn on a signed-log scale: the hover readout turns the colour value back
+            "asinh": {name: unit for name, unit in ASINH_SCALES.items()},
+            "impact_categories": impact.category_labels()}
 
 
 def build_layout():

@@ -15,10 +15,10 @@ import re
 from urllib.parse import parse_qs, urlencode
 
 from .. import physics as ph
-from ..physics import eos, plane, regimes
+from ..physics import eos, impact, plane, regimes
 from ..physics.burning import PROCESSES
 
-__all__ = ["DEFAULT_VIEW", "CONTROLS", "QUANTITY_NAMES", "COLOR_CHOICES", "UI_RESOLUTION",
+__all__ = ["DEFAULT_VIEW", "CONTROLS", "QUANTITY_NAMES", "MAP_QUANTITIES", "COLOR_CHOICES", "UI_RESOLUTION",
            "encode_view", "decode_view", "view_to_controls", "controls_to_view", "parse_number_list"]
 
 #: Colour-scale menu: key -> (label, plotly name, diverging?). "auto" picks a
@@ -31,7 +31,10 @@ COLOR_CHOICES = {
     "purple-orange": ("purple–orange (diverging)", "PuOr_r", True),
     "blue-red": ("blue–red (diverging)", "RdBu_r", True),
 }
-QUANTITY_NAMES = tuple(q.name for q in plane.QUANTITIES)
+#: Every quantity the map can shade: the plane's own, then the impact of each ingredient
+#: (:mod:`thermoplane.physics.impact`; new equation-of-state options join by themselves).
+MAP_QUANTITIES = tuple(plane.QUANTITIES) + impact.impact_quantities()
+QUANTITY_NAMES = tuple(q.name for q in MAP_QUANTITIES)
 #: Resolutions offered in the page (the physics accepts more).
 UI_RESOLUTION = (20, 600)
 _MAX_TEXT = 200

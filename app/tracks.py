@@ -50,10 +50,11 @@ __all__ = ["COMPUTED_COLUMNS", "ILLUSTRATIVE", "TRACK_COLOURS", "MAX_STORED_ROWS
 COMPUTED_COLUMNS = ("P", "P_gas", "P_rad", "beta", "eta", "gamma1", "nabla_ad", "regime")
 #: How the demo tracks are labelled wherever they are shown.
 ILLUSTRATIVE = "illustrative, computed by Thermoplane"
-#: Track colours: the colour-blind-safe palette of Okabe & Ito (2008, "Color
-#: Universal Design", J*FLY), darkest first so the first tracks stand out on
-#: the light map colours.
-TRACK_COLOURS = ("#000000", "#D55E00", "#0072B2", "#CC79A7", "#009E73", "#E69F00", "#56B4E9", "#F0E442")
+#: Track colours: bright, saturated colours that no line of the map uses (the lines are dark:
+#: app.figures.LINE_STYLES), so a track is never mistaken for a boundary; each is drawn over a
+#: white halo. Our own choice, checked against the line colours in tests/app/test_figures.py.
+TRACK_COLOURS = ("#E6007E", "#00A6D6", "#FF3B3B", "#7CC000", "#A05CFF", "#F5C400", "#00B3A1", "#FF6FAE",
+                 "#00D084", "#6E7BFF", "#C000C0", "#FFB000")
 #: Rows per track kept in the browser (see the module notes).
 MAX_STORED_ROWS = 20_000
 #: Numbers per track kept in the browser.
@@ -82,7 +83,36 @@ def _computed_name(name: str, taken) -> str:
     return name if name not in taken else f"{name}_computed"
 
 
-def enrich(df: pd.DataFrame, mapping: ColumnMapping, comp: Composition, **physics_options):
+def crossing_label(key: str) -> str:
+    """Words for a crossing key: a regime line's label, or "ε_pp = 10³ erg g⁻¹ s⁻¹" for an ignition contour."""
+    if key.startswith("ignition_"):
+        process, _, level = key[len("ignition_"):].rpartition("_")
+        try:
+            from .figures import ignition_label
+            return ignition_label(process, float(level)) + " erg g⁻¹ s⁻¹"
+        except ValueError:
+            return key
+    return regimes.BOUNDARY_LABELS.get(key, key.replace("_", " "))
+
+
+def short_label(key: str) -> str:
+    """A few characters to write beside a crossing marker on the map: the symbol part of its label."""
+    label = crossing_label(key)
+    if key.startswith("ignition_"):
+        return label.replace(" erg g⁻¹ s⁻¹", "")
+    inner = label[label.find("(") + 1:label.rfind(")")] if "(" in label and label.endswith(")") else ""
+    return inner or label
+
+
+def track_composition(comp: Composition, data: TrackData) -> Composition:
+    """The composition handed to the track's evaluation: the panel's, or (with nuclide columns)
+    a carrier of the track's own metal mixture."""
+    if data.metals:
+        return Composition.from_xyz(0.0, 0.0, 1.0, metals=data.metals)
+    return comp
+
+
+def enrich(df: pd.DataFrame, mapping: ColumnMapping, comp: Composition, ignition=(), **physics_options):
     """The user's table with the state and regime of every row, and its crossings.
 
     Parameters
@@ -93,6 +123,8 @@ def enrich(df: pd.DataFrame, mapping: ColumnMapping, comp: Composition, **physic
         Which columns are density, temperature, age, label, X, Y.
     comp : Composition
         Composition of every row (or the metal mixture when X/Y are mapped).
+    ignition : iterable of (process, level)
+        Ignition contours whose crossings are reported too (erg g^-1 s^-1).
     **physics_options
         Passed to :func:`thermoplane.physics.evaluate`.
 
@@ -116,8 +148,9 @@ def enrich(df: pd.DataFrame, mapping: ColumnMapping, comp: Composition, **physic
         A bad physics option.
     """
     data = apply_mapping(df, mapping)
-    state_columns, crossings = track_report(data.log_rho, data.log_T, comp, age=data.age, valid=data.valid,
-                                            X=data.X, Y=data.Y, frontiers=True, **physics_options)
+    state_columns, crossings = track_report(data.log_rho, data.log_T, track_composition(comp, data), age=data.age,
+                                            valid=data.valid, X=data.X, Y=data.Y, ignition=ignition,
+                                            frontiers=True, **physics_options)
     valid = np.isfinite(state_columns["P"].to_numpy())
     enriched = df.copy()
     enriched.attrs = {}
@@ -125,9 +158,21 @@ def enrich(df: pd.DataFrame, mapping: ColumnMapping, comp: Composition, **physic
         col = _computed_name(name, df.columns)
         enriched[col] = _regime(state_columns, valid) if name == "regime" else state_columns[name].to_numpy()
     crossings = crossings.copy()
-    names = {**regimes.BOUNDARY_LABELS, **frontiers.labels(comp)}
-    crossings["label"] = [names.get(k, k) for k in crossings["boundary"]]
+    names = frontiers.labels(comp)
+    crossings["label"] = [names.get(k) or crossing_label(k) for k in crossings["boundary"]]
     return enriched, crossings, data
+
+
+def _finite(v):
+    return None if v is None or not np.isfinite(v) else round(float(v), 6)
+
+
+def composition_text(rec: dict) -> str:
+    """"X = 0.70, Y = 0.28, Z = 0.02 (track row)" for a crossing record."""
+    if rec.get("X") is None:
+        return "—"
+    where = "this track's own" if rec.get("composition") == "track" else "the panel's"
+    return f"X = {rec['X']:.3f}, Y = {rec['Y']:.3f}, Z = {rec['Z']:.3f} ({where})"
 
 
 def crossing_records(crossings: pd.DataFrame, rows=None) -> list[dict]:
@@ -142,7 +187,9 @@ def crossing_records(crossings: pd.DataFrame, rows=None) -> list[dict]:
                     "row": row, "row_after": after, "log_rho": float(rec["log_rho"]),
                     "log_T": float(rec["log_T"]),
                     "age": None if age is None or not np.isfinite(age) else float(age),
-                    "direction": int(rec["direction"])})
+                    "direction": int(rec["direction"]),
+                    "X": _finite(rec.get("X")), "Y": _finite(rec.get("Y")), "Z": _finite(rec.get("Z")),
+                    "composition": rec.get("composition", "panel")})
     return out
 
 
@@ -246,7 +293,8 @@ def demo_tracks(comp: Composition, n_points: int = 160, **physics_options) -> li
 # ----------------------------------------------------------------------------
 # the browser's copy
 # ----------------------------------------------------------------------------
-_MAPPING_FIELDS = ("rho_col", "T_col", "rho_log", "T_log", "units", "age_col", "label_col", "X_col", "Y_col")
+_MAPPING_FIELDS = ("rho_col", "T_col", "rho_log", "T_log", "units", "age_col", "label_col", "X_col", "Y_col",
+                   "Z_col", "nuclide_cols")
 
 
 def mapping_to_dict(mapping: ColumnMapping) -> dict:
@@ -263,6 +311,7 @@ def mapping_from_dict(d: dict) -> ColumnMapping:
         if k in d:
             setattr(m, k, d[k])
     m.rho_log, m.T_log = bool(m.rho_log), bool(m.T_log)
+    m.nuclide_cols = dict(m.nuclide_cols or {})
     return m
 
 
@@ -274,10 +323,11 @@ def _unb64(text: str) -> np.ndarray:
     return np.frombuffer(base64.b64decode(text), dtype="<f8").copy()
 
 
-def read_upload(data: bytes, filename: str, max_bytes: int | None = None):
-    """read_table + detect_columns: (table, mapping); TableError with a message."""
+def read_upload(data: bytes, filename: str, max_bytes: int | None = None, **read_options):
+    """read_table (with the user's ``read_options``, see its keywords) + detect_columns:
+    (table, mapping); TableError with a message."""
     kwargs = {} if max_bytes is None else {"max_bytes": max_bytes}
-    df = read_table(data, filename, **kwargs)
+    df = read_table(data, filename, **kwargs, **read_options)
     return df, detect_columns(df)
 
 
@@ -285,13 +335,14 @@ def _options_key(opts: dict) -> list:
     return sorted([k, v] for k, v in opts.items())
 
 
-def report_key(mapping: ColumnMapping, comp: Composition, opts: dict) -> str:
+def report_key(mapping: ColumnMapping, comp: Composition, opts: dict, ignition=()) -> str:
     """What a full report depends on, as text (the browser compares it, the server never keeps it)."""
-    return json.dumps([mapping_to_dict(mapping), repr(comp.key()), _options_key(opts)], sort_keys=True)
+    return json.dumps([mapping_to_dict(mapping), repr(comp.key()), _options_key(opts),
+                       [[p, float(lv)] for p, lv in ignition]], sort_keys=True)
 
 
 def to_store(df: pd.DataFrame, mapping: ColumnMapping, comp: Composition, *, name: str, filename: str = "",
-             colour: str = TRACK_COLOURS[0], label: str = "", notes=(), **physics_options) -> dict:
+             colour: str = TRACK_COLOURS[0], label: str = "", notes=(), ignition=(), **physics_options) -> dict:
     """Evaluate every row once, then keep a compact copy for the browser.
 
     Returns a JSON-ready dict: ``id`` (content hash), ``name``, ``filename``,
@@ -306,7 +357,8 @@ def to_store(df: pd.DataFrame, mapping: ColumnMapping, comp: Composition, *, nam
     TableError, ValueError
         As :func:`enrich`.
     """
-    _, crossings, data = enrich(df, mapping, comp, **physics_options)
+    ignition = tuple((p, float(lv)) for p, lv in ignition)
+    _, crossings, data = enrich(df, mapping, comp, ignition=ignition, **physics_options)
     n = len(df)
     if n > MAX_STORED_ROWS:
         keep_idx = np.concatenate([crossings["row"].to_numpy(), crossings["row_after"].to_numpy()])
@@ -315,8 +367,8 @@ def to_store(df: pd.DataFrame, mapping: ColumnMapping, comp: Composition, *, nam
         rows = None
     sub = df if rows is None else df.iloc[rows]
     n_kept = len(sub)
-    mapped = [c for c in (mapping.rho_col, mapping.T_col, mapping.age_col, mapping.label_col, mapping.X_col,
-                          mapping.Y_col) if c is not None]
+    mapped = [c for c in (mapping.rho_col, mapping.T_col, mapping.age_col, mapping.label_col)
+              if c is not None] + mapping.composition_cols
     numeric, text, kept = {}, {}, []
     cells = 0
     for col in mapped + [c for c in df.columns if c not in mapped]:
@@ -342,7 +394,7 @@ def to_store(df: pd.DataFrame, mapping: ColumnMapping, comp: Composition, *, nam
         "columns": [str(c) for c in df.columns], "kept": kept, "numeric": numeric, "text": text,
         "rows": None if rows is None else base64.b64encode(rows.astype("<i8").tobytes()).decode("ascii"),
         "n_rows": n, "mapping": mapping_to_dict(mapping),
-        "report": {"key": report_key(mapping, comp, physics_options),
+        "report": {"key": report_key(mapping, comp, physics_options, ignition),
                    "crossings": crossing_records(crossings),
                    "bad_rows": len(data.bad_rows),
                    "bad_examples": [data.bad_reasons[i] for i in data.bad_rows[:5]]},
@@ -386,7 +438,7 @@ def cache_clear() -> None:
     _CACHE.clear()
 
 
-def evaluate_stored(track: dict, comp: Composition, **physics_options) -> dict:
+def evaluate_stored(track: dict, comp: Composition, ignition=(), **physics_options) -> dict:
     """The state along a stored track for a composition, cached (bounded LRU of 16).
 
     Returns
@@ -403,17 +455,18 @@ def evaluate_stored(track: dict, comp: Composition, **physics_options) -> dict:
         As :func:`enrich` (e.g. a mapping that names a column not kept).
     """
     mapping = mapping_from_dict(track["mapping"])
+    ignition = tuple((p, float(lv)) for p, lv in ignition)
     key = (track["id"], json.dumps(track["mapping"], sort_keys=True), comp.key(),
-           tuple(sorted(physics_options.items())))
+           tuple(sorted(physics_options.items())), ignition)
     if key in _CACHE:
         _CACHE.move_to_end(key)
         return _CACHE[key]
     df = from_store(track)
     rows = stored_rows(track)
-    enriched, crossings, data = enrich(df, mapping, comp, **physics_options)
+    enriched, crossings, data = enrich(df, mapping, comp, ignition=ignition, **physics_options)
     report = track.get("report") or {}
     thinned = bool(track.get("rows"))
-    if report.get("key") == report_key(mapping, comp, physics_options):
+    if report.get("key") == report_key(mapping, comp, physics_options, ignition):
         records, exact = report.get("crossings", []), True
     else:
         records, exact = crossing_records(crossings, rows), not thinned

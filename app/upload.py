@@ -26,8 +26,8 @@ from dataclasses import dataclass, field
 import numpy as np
 import pandas as pd
 
-__all__ = ["TableError", "MAX_BYTES", "MAX_ROWS", "read_table", "ColumnMapping", "detect_columns",
-           "TrackData", "apply_mapping", "to_numbers"]
+__all__ = ["TableError", "LayoutError", "MAX_BYTES", "MAX_ROWS", "DELIMITERS", "read_table", "preview_lines",
+           "ColumnMapping", "detect_columns", "TrackData", "apply_mapping", "to_numbers", "nuclide_of"]
 
 #: Largest accepted file, raw or decompressed, in bytes (25 MB).
 MAX_BYTES = 25 * 1024 * 1024
@@ -50,6 +50,21 @@ _MAX_HIGH_BYTE_FRACTION = 0.02
 
 class TableError(ValueError):
     """An uploaded table cannot be used; the message says why and what to change."""
+
+
+class LayoutError(TableError):
+    """The file is text but its lines could not be split into a header and columns.
+
+    The app answers this one by showing the first lines of the file and letting
+    the user choose the delimiter, the header line and whether to skip lines that
+    do not fit (:func:`read_table`'s ``delimiter``, ``header_line``, ``skip_ragged``).
+    """
+
+
+#: Delimiter choices a user can make by hand: name -> character (None: runs of whitespace).
+DELIMITERS = {"comma": ",", "semicolon": ";", "tab": "\t", "pipe": "|", "whitespace": None}
+_SEP_NAMES = {None: "whitespace", "\t": "tab", ",": "comma", ";": "semicolon", "|": "pipe"}
+_SEP_HINT = re.compile(r"^sep=(.)$", re.IGNORECASE)
 
 
 # ----------------------------------------------------------------------------
@@ -253,8 +268,64 @@ def _dedupe(names: list[str]) -> list[str]:
     return out
 
 
+def _balanced_tokens(header: str) -> list[str]:
+    """Whitespace tokens joined while a bracket is open: 'log10(rho/g cm^-3)' stays one field."""
+    out, cur, depth = [], [], 0
+    for tok in header.split():
+        cur.append(tok)
+        depth += sum(tok.count(c) for c in "([{") - sum(tok.count(c) for c in ")]}")
+        if depth <= 0:
+            out.append(" ".join(cur))
+            cur, depth = [], 0
+    if cur:
+        out.append(" ".join(cur))
+    return out
+
+
+def _split_header_to(header: str, n: int) -> list[str] | None:
+    """A whitespace header split into exactly ``n`` names, when units with spaces make that possible.
+
+    Tried in turn: runs of two or more blanks; whitespace outside brackets
+    (``log10(rho/g cm^-3)`` is one name); the same with a bracketed unit joined
+    to the name before it (``rho [g cm^-3]``). None when none gives ``n``.
+    """
+    first = [c for c in re.split(r"\s{2,}|\t", header.strip()) if c]
+    if len(first) == n:
+        return first
+    balanced = _balanced_tokens(header)
+    if len(balanced) == n:
+        return balanced
+    joined: list[str] = []
+    for tok in balanced:
+        if joined and tok[:1] in "([{":
+            joined[-1] += " " + tok
+        else:
+            joined.append(tok)
+    return joined if len(joined) == n else None
+
+
+def _mode(counts: np.ndarray) -> int:
+    values, freq = np.unique(counts, return_counts=True)
+    return int(values[np.argmax(freq)])
+
+
+def preview_lines(data: bytes, n: int = 12, max_chars: int = 200) -> list[str]:
+    """The first ``n`` lines of a file as text (gzip undone, each cut to ``max_chars``), for a user to look at.
+
+    Never raises: a file that is not text gives an empty list.
+    """
+    try:
+        data = bytes(data[:4 * _CHUNK]) if data[:2] != _GZIP_MAGIC else \
+            zlib.decompressobj(wbits=31).decompress(bytes(data[:4 * _CHUNK]), 4 * _CHUNK)
+        text = _decode(data)
+    except (TableError, zlib.error, TypeError):
+        return []
+    return [line[:max_chars] for line in text.splitlines()[:n]]
+
+
 def read_table(data: bytes, filename: str = "", max_bytes: int = MAX_BYTES,
-               max_rows: int = MAX_ROWS) -> pd.DataFrame:
+               max_rows: int = MAX_ROWS, *, delimiter: str = "auto", header_line: int | None = None,
+               skip_ragged: bool = False) -> pd.DataFrame:
     """Read an uploaded track table into a DataFrame.
 
     Parameters
@@ -268,6 +339,16 @@ def read_table(data: bytes, filename: str = "", max_bytes: int = MAX_BYTES,
         Largest accepted size, raw and after decompression.
     max_rows : int
         Largest accepted number of data rows.
+    delimiter : str
+        "auto" (sniffed) or a key of :data:`DELIMITERS` chosen by the user.
+    header_line : int, optional
+        None: found automatically. 0: the file has no header (columns are
+        named ``column_1``, ``column_2``...). k >= 1: line k of the file (1-based,
+        counting every line) is the header; lines before it are skipped.
+    skip_ragged : bool
+        Skip data lines whose number of fields differs from the header's
+        instead of refusing the file; their line numbers are in
+        ``df.attrs["skipped_lines"]``.
 
     Returns
     -------
@@ -279,26 +360,38 @@ def read_table(data: bytes, filename: str = "", max_bytes: int = MAX_BYTES,
 
     Raises
     ------
+    LayoutError
+        No header; a header with no data rows; a row with a different number
+        of fields from the header (the message names the line); unmatched
+        quotes: the lines are text but do not split into a table.
     TableError
         Empty file; binary data; too large (raw or decompressed); more than
-        ``max_rows`` data rows; a header with no data rows; no header; a row
-        with a different number of fields from the header (the message names
-        the line); unmatched quotes.
+        ``max_rows`` data rows; a bad ``delimiter`` or ``header_line``.
 
     Notes
     -----
     The delimiter is sniffed on the header and the first 50 data lines (see
-    :func:`_sniff`). Lines whose first non-blank character is ``#`` are
-    comments and may appear anywhere; when the first non-comment line is all
-    numbers, the last comment line is taken as the header if it has the same
-    number of fields (``# model age log_rho``). Quoted fields may contain the
-    delimiter but not a line break. In semicolon-, tab- or whitespace-separated
-    files a column written entirely with decimal commas (``1,5``) is read as
-    numbers.
+    :func:`_sniff`); a first line ``sep=;`` (written by some spreadsheets)
+    names it. Lines whose first non-blank character is ``#`` are comments and
+    may appear anywhere; when the first non-comment line is all numbers, the
+    last comment line is taken as the header if it has the same number of
+    fields (``# model age log_rho``). A whitespace-separated header whose
+    names hold units with spaces (``log10(rho/g cm^-3)``) is split into as
+    many names as the data lines have fields (see :func:`_split_header_to`).
+    Quoted fields may contain the delimiter but not a line break. A column
+    written entirely with decimal commas (``2,818383e+04``, spreadsheet
+    exports of many countries) is read as numbers in every file that is not
+    comma-separated (and in quoted cells of one that is). A trailing delimiter
+    at the end of every line (an empty last column) is dropped.
     """
     name = f"'{filename}'" if filename else "the file"
     if not isinstance(data, (bytes, bytearray, memoryview)):
         raise TableError(f"expected the file content as bytes, got {type(data).__name__}")
+    if delimiter != "auto" and delimiter not in DELIMITERS:
+        raise TableError(f"unknown delimiter {delimiter!r}; choose auto, {', '.join(DELIMITERS)}")
+    if header_line is not None and (isinstance(header_line, bool) or not isinstance(header_line, (int, np.integer))
+                                    or header_line < 0):
+        raise TableError(f"the header line must be a line number >= 1, or 0 for no header; got {header_line!r}")
     data = bytes(data)
     if len(data) > max_bytes:
         raise TableError(f"the file is {_fmt_mb(len(data))}; the limit is {_limit_mb(max_bytes)}; "
@@ -312,70 +405,115 @@ def read_table(data: bytes, filename: str = "", max_bytes: int = MAX_BYTES,
                              "and data rows")
     text = _decode(data)
 
-    header_line, header_lineno, last_comment = None, 0, None
+    forced = DELIMITERS[delimiter] if delimiter != "auto" else "auto"
+    header_line_text, header_lineno, last_comment = None, 0, None
+    no_header = header_line == 0
     data_lines: list[str] = []
     data_linenos: list[int] = []
+    n_lines = 0
     for lineno, raw in enumerate(text.splitlines(), start=1):
+        n_lines = lineno
         line = raw.strip()
+        if header_line and lineno < header_line:
+            continue
+        if header_line and lineno == header_line:
+            header_line_text, header_lineno = line.lstrip("#").strip(), lineno
+            continue
         if not line:
             continue
         if line.startswith("#"):
-            if header_line is None:
+            if header_line_text is None:
                 last_comment = line.lstrip("#").strip()
             continue
-        if header_line is None:
-            header_line, header_lineno = line, lineno
+        hint = _SEP_HINT.match(line)
+        if hint and header_line_text is None and not data_lines:
+            if forced == "auto":
+                forced = "\t" if hint.group(1) == "\t" else hint.group(1)
+                if forced not in _SEP_NAMES:
+                    forced = "auto"
+            continue
+        if header_line_text is None and not no_header:
+            header_line_text, header_lineno = line, lineno
             continue
         data_lines.append(line)
         data_linenos.append(lineno)
         if len(data_lines) > max_rows:
             raise TableError(f"{name} has more than {max_rows:,} data rows; the limit is {max_rows:,} rows; "
                              "thin the track out (every n-th model) and upload again")
+    if header_line and header_line > n_lines:
+        raise TableError(f"{name} has {n_lines} lines; there is no line {header_line} to use as the header")
 
-    if header_line is None:
-        raise TableError(f"{name} holds only comment lines; add a header row naming the columns "
-                         "and the data rows")
+    if no_header:
+        if not data_lines:
+            raise LayoutError(f"{name} has no data lines")
+        delim = forced if forced != "auto" else _sniff(data_lines[0], data_lines[1:_SNIFF_LINES])
+        ncol = _mode(np.array([_split_count(x, delim) for x in data_lines[:_SNIFF_LINES]]))
+        header_line_text = (delim or " ").join(f"column_{i + 1}" for i in range(ncol))
+    if not header_line_text:
+        raise LayoutError(f"{name} holds only comment lines; add a header row naming the columns "
+                          "and the data rows")
 
-    delim = _sniff(header_line, data_lines[:_SNIFF_LINES])
-    if _looks_numeric(_split(header_line, delim)):
+    def sniff(header):
+        return forced if forced != "auto" else _sniff(header, data_lines[:_SNIFF_LINES])
+
+    delim = sniff(header_line_text)
+    if not no_header and not header_line and _looks_numeric(_split(header_line_text, delim)):
         # The header may be the last comment line before the data ("# model age log_rho").
         promoted = False
         if last_comment:
-            sample = [header_line] + data_lines[:_SNIFF_LINES]
-            cdelim = _sniff(last_comment, sample)
+            sample = [header_line_text] + data_lines[:_SNIFF_LINES]
+            cdelim = forced if forced != "auto" else _sniff(last_comment, sample)
             ccells = _split(last_comment, cdelim)
-            if len(ccells) == _split_count(header_line, cdelim) and not _looks_numeric(ccells):
-                data_lines.insert(0, header_line)
+            if len(ccells) == _split_count(header_line_text, cdelim) and not _looks_numeric(ccells):
+                data_lines.insert(0, header_line_text)
                 data_linenos.insert(0, header_lineno)
-                header_line, promoted = last_comment, True
+                header_line_text, promoted = last_comment, True
                 if len(data_lines) > max_rows:
                     raise TableError(f"{name} has more than {max_rows:,} data rows; the limit is "
                                      f"{max_rows:,} rows; thin the track out and upload again")
         if not promoted:
-            raise TableError(f"the first line of {name} (line {header_lineno}) is all numbers: add a "
-                             f"header row naming the columns, e.g. 'model,age,log_rho,log_T'")
+            raise LayoutError(f"the first line of {name} (line {header_lineno}) is all numbers: add a "
+                              f"header row naming the columns, e.g. 'model,age,log_rho,log_T', or read it "
+                              "with no header")
 
-    delim = _sniff(header_line, data_lines[:_SNIFF_LINES])
-    if delim is not None and header_line.count('"') % 2:
-        raise TableError(f"the header of {name} has an unmatched quote character (\")")
-    columns = _dedupe(_split(header_line, delim))
+    delim = sniff(header_line_text)
+    if delim is not None and header_line_text.count('"') % 2:
+        raise LayoutError(f"the header of {name} has an unmatched quote character (\")")
+    raw_names = _split(header_line_text, delim)
     if not data_lines:
-        raise TableError(f"{name} has a header row (columns: {', '.join(columns)}) but no data rows")
+        raise LayoutError(f"{name} has a header row (columns: {', '.join(_dedupe(raw_names))}) but no data rows")
+    if delim is None and data_lines:
+        # names with units in them ("log10(rho/g cm^-3)"): the data lines tell how many names there are
+        n_data = _mode(np.array([_split_count(x, None) for x in data_lines[:_SNIFF_LINES]]))
+        if n_data != len(raw_names):
+            names = _split_header_to(header_line_text, n_data)
+            if names is not None:
+                raw_names = names
+    columns = _dedupe(raw_names)
 
     ncol = len(columns)
     if delim is not None and any('"' in line for line in data_lines):
         for i, line in enumerate(data_lines):
             if line.count('"') % 2:
-                raise TableError(f"line {data_linenos[i]} of {name} has an unmatched quote character (\")")
+                raise LayoutError(f"line {data_linenos[i]} of {name} has an unmatched quote character (\")")
     counts = np.fromiter((_split_count(line, delim) for line in data_lines), dtype=np.int64,
                          count=len(data_lines))
     ragged = np.nonzero(counts != ncol)[0]
-    if ragged.size:
+    skipped: list[int] = []
+    if ragged.size and skip_ragged:
+        skipped = [data_linenos[i] for i in ragged]
+        keep = counts == ncol
+        data_lines = [x for x, k in zip(data_lines, keep) if k]
+        data_linenos = [x for x, k in zip(data_linenos, keep) if k]
+        if not data_lines:
+            raise LayoutError(f"no line of {name} has the header's {ncol} fields ({', '.join(columns)}) "
+                              f"when split at {_SEP_NAMES[delim]}; choose another delimiter or header line")
+    elif ragged.size:
         i = int(ragged[0])
-        sep = {None: "whitespace", "\t": "tab", ",": "comma", ";": "semicolon", "|": "pipe"}[delim]
         more = f" ({ragged.size - 1} more lines like it)" if ragged.size > 1 else ""
-        raise TableError(f"line {data_linenos[i]} of {name} has {counts[i]} fields but the header has {ncol} "
-                         f"({', '.join(columns)}); fields are {sep}-separated; fix or remove that line{more}")
+        raise LayoutError(f"line {data_linenos[i]} of {name} has {counts[i]} fields but the header has {ncol} "
+                          f"({', '.join(columns)}); fields are {_SEP_NAMES[delim]}-separated; fix or remove "
+                          f"that line{more}")
 
     body = "\n".join(data_lines)
     try:
@@ -389,21 +527,24 @@ def read_table(data: bytes, filename: str = "", max_bytes: int = MAX_BYTES,
                              quoting=csv.QUOTE_MINIMAL if '"' in body else csv.QUOTE_NONE,
                              engine="c", skip_blank_lines=False, comment=None)
     except (pd.errors.ParserError, ValueError, csv.Error) as exc:
-        raise TableError(f"{name} cannot be split into columns ({exc}); check the delimiter and quotes") from None
+        raise LayoutError(f"{name} cannot be split into columns ({exc}); check the delimiter and quotes") from None
     if len(df) != len(data_lines) or df.shape[1] != ncol:
-        raise TableError(f"{name} cannot be split consistently into {ncol} columns ({', '.join(columns)}); "
-                         "check the delimiter and quote characters")
+        raise LayoutError(f"{name} cannot be split consistently into {ncol} columns ({', '.join(columns)}); "
+                          "check the delimiter and quote characters")
     df.columns = columns
 
     out = {}
-    for col in columns:
+    comma_ok = delim != "," or '"' in body
+    for col, raw in zip(columns, raw_names):
         nums, parsed = to_numbers(df[col])
         if parsed.all():
             out[col] = nums
             continue
         cells = df[col].astype(object).str.strip()
         nonempty = (cells != "").to_numpy()
-        if delim != "," and not parsed[nonempty].all():
+        if not nonempty.any() and not str(raw).strip() and col == columns[-1]:
+            continue                        # a trailing delimiter on every line: no column there
+        if comma_ok and not parsed[nonempty].all():
             nums2, parsed2 = to_numbers(cells, decimal_comma=True)
             if parsed2[nonempty].all():
                 nums, parsed = nums2, parsed2
@@ -411,8 +552,10 @@ def read_table(data: bytes, filename: str = "", max_bytes: int = MAX_BYTES,
             out[col] = np.where(nonempty, nums, np.nan)
         else:
             out[col] = cells.to_numpy(dtype=object)
-    result = pd.DataFrame(out, columns=columns)
+    result = pd.DataFrame(out, columns=list(out))
     result.attrs["source_lines"] = np.asarray(data_linenos, dtype=np.int64)
+    result.attrs["skipped_lines"] = skipped
+    result.attrs["delimiter"] = _SEP_NAMES[delim]
     return result
 
 
@@ -426,6 +569,9 @@ class ColumnMapping:
     ``rho_log`` / ``T_log``: the column holds log10 of the quantity.
     ``units``: "cgs" (g cm^-3) or "si" (kg m^-3) for the density; temperature
     is in K either way. ``age_col`` None means "use the row number".
+    ``X_col``, ``Y_col``, ``Z_col``: mass fractions of hydrogen, helium and
+    metals per row (any two give the third); ``nuclide_cols``: nuclide ->
+    column of its mass fraction (used when no X/Y/Z column is mapped).
     ``ambiguous`` collects notes for the user (several candidates, guesses made
     from values, roles left unset).
     """
@@ -439,23 +585,55 @@ class ColumnMapping:
     label_col: str | None = None
     X_col: str | None = None
     Y_col: str | None = None
+    Z_col: str | None = None
+    nuclide_cols: dict[str, str] = field(default_factory=dict)
     ambiguous: list[str] = field(default_factory=list)
+
+    @property
+    def composition_cols(self) -> list[str]:
+        """Every column that gives the track's own composition."""
+        return [c for c in (self.X_col, self.Y_col, self.Z_col) if c is not None] + list(self.nuclide_cols.values())
 
 
 _UNIT_RE = re.compile(r"[\[\(\{<]([^\]\)\}>]*)[\]\)\}>]")
 _LOG_PREFIX = re.compile(r"^(log_?10|log|lg)_?")
-_POSITION = r"(?:c|cen|cntr|center|centre|central|core)"
+# plain words for "at the centre"
+_POSITION = r"(?:c|cen|center|centre|central|core)"
 _UNIT_TOKENS = r"(?:cgs|si|k|kelvin|g_?cm_?3|g_?cm_?m3|gcc|kg_?m_?3|kg_?m_?m3|g_?cc)"
 _DENSITY_NAMES = ("rho", "density", "dens", "den")
 _TEMPERATURE_NAMES = ("t", "temp", "temperature", "tem")
-_AGE_NAMES = ("age", "time", "t_yr", "star_age", "age_yr", "age_myr", "age_gyr", "time_yr", "time_s",
-              "t_myr", "t_gyr", "t_s", "age_s", "tau")
-_STEP_NAMES = ("model", "model_number", "modelnumber", "model_no", "model_nr", "step", "steps", "nmodel",
-               "n_model", "imodel", "num", "number", "iteration")
-_LABEL_NAMES = ("label", "name", "phase", "stage", "tag", "comment", "id", "model_name", "star")
-_X_NAMES = ("x", "h1", "x_h", "xh", "x_h1", "hydrogen", "h_1")
-_Y_NAMES = ("y", "he4", "y_he", "yhe", "y_he4", "helium", "he_4")
+# Parameters are found from plain words anywhere in the name (age_yr, time [s], model, step).
+_AGE_WORDS = ("age", "time")
+_AGE_NAMES = ("t_yr", "t_myr", "t_gyr", "t_s")
+_STEP_WORDS = ("model", "step", "steps", "iteration")
+_LABEL_NAMES = ("label", "name", "phase", "stage", "tag", "comment", "id", "star")
+_X_NAMES = ("x", "x_h", "xh", "hydrogen")
+_Y_NAMES = ("y", "y_he", "yhe", "helium")
+_Z_NAMES = ("z", "metals", "metallicity")
 _SI_RE = re.compile(r"kg\s*[/_ ]?\s*m\s*\^?\s*-?\s*3|kg\s*m\s*\*\*\s*-?3|(^|[^a-z])si($|[^a-z])")
+# A nuclide written as element, separator, mass number (H-1, He_4, c-12), optionally as X(...)
+# and with a centre word before or after; never glued (that spelling belongs to no table of ours).
+_NUCLIDE_RE = re.compile(r"^([A-Za-z]{1,2})[-_ ](\d{1,3})$")
+_NUCLIDE_POSITION = re.compile(r"^(?:center|centre|central|core|c)[_ ]+|[_ ]+(?:center|centre|central|core|c)$",
+                               re.IGNORECASE)
+
+
+def nuclide_of(column) -> str | None:
+    """The nuclide a column's name spells out (``H-1``, ``X(He-4)``, ``central C-12``), or None.
+
+    Only nuclides of :data:`thermoplane.physics.NUCLIDES`, written with a
+    separator between element and mass number.
+    """
+    from ..physics import NUCLIDES
+    name = str(column).strip()
+    m = re.fullmatch(r"(?:x|X)\s*\((.*)\)", name)
+    name = m.group(1).strip() if m else name
+    name = _NUCLIDE_POSITION.sub("", name).strip()
+    m = _NUCLIDE_RE.match(name)
+    if not m:
+        return None
+    nuclide = f"{m.group(1).capitalize()}-{int(m.group(2))}"
+    return nuclide if nuclide in NUCLIDES else None
 
 
 def _normalise(name: str) -> tuple[str, str]:
@@ -539,11 +717,15 @@ def detect_columns(df: pd.DataFrame) -> ColumnMapping:
       recognised (convert to log10).
     - SI: the unit text or name mentions kg/m3 (kg m^-3, kg_m3) or "si";
       otherwise cgs.
-    - age: ``age``, ``time``, ``t_yr``, ``star_age``...; else a model or step
-      counter (``model``, ``model_number``, ``step``); else unset (the row
-      number is used).
-    - X, Y: ``X``/``h1``/``hydrogen`` and ``Y``/``he4``/``helium`` with
-      centre qualifiers, only when most values lie in [0, 1].
+    - age: a name with the word ``age`` or ``time`` in it (``age``,
+      ``age_yr``, ``time [s]``), or ``t_yr``...; else a model or step
+      counter (a name with the word ``model``, ``step`` or ``iteration``);
+      else unset (the row number is used).
+    - composition, only when most values lie in [0, 1]: ``X``/``hydrogen``,
+      ``Y``/``helium``, ``Z``/``metals`` with centre qualifiers (``X_c``,
+      ``central hydrogen``); or, when none of these is there, nuclide columns
+      written with a separator (``H-1``, ``He-4``, ``X(C-12)``, see
+      :func:`nuclide_of`).
     - label: ``label``, ``name``, ``phase``...; else the only non-numeric
       column if there is exactly one.
     """
@@ -597,25 +779,45 @@ def detect_columns(df: pd.DataFrame) -> ColumnMapping:
                          "check whether it is linear")
 
     taken = {m.rho_col, m.T_col}
+
+    def words(col) -> set[str]:
+        return set(info[col][0].split("_"))
+
     ages = [c for c in df.columns if c not in taken and
-            (_strip_qualifiers(info[c][0]) in _AGE_NAMES or str(c).strip() == "t")]
-    steps = [c for c in df.columns if c not in taken and info[c][0] in _STEP_NAMES]
+            (words(c) & set(_AGE_WORDS) or _strip_qualifiers(info[c][0]) in _AGE_NAMES or str(c).strip() == "t")]
+    steps = [c for c in df.columns if c not in taken and words(c) & set(_STEP_WORDS)]
     m.age_col = _pick(ages, "age", notes) if ages else _pick(steps, "age (model or step number)", notes)
 
-    def composition(names, role):
-        cands = [c for c in df.columns if c not in taken and _role_match(info[c][0], names)]
-        good = []
-        for c in cands:
-            vals = _finite_values(df, c)
-            if vals.size and np.mean((vals >= 0) & (vals <= 1)) > 0.5:
-                good.append(c)
-            else:
-                notes.append(f"column {c!r} is named like {role} but its values are not mass fractions "
-                             "in [0, 1]; not used")
-        return _pick(good, role, notes)
+    def is_fraction(c, role) -> bool:
+        vals = _finite_values(df, c)
+        if vals.size and np.mean((vals >= 0) & (vals <= 1)) > 0.5:
+            return True
+        notes.append(f"column {c!r} is named like {role} but its values are not mass fractions in [0, 1]; "
+                     "not used")
+        return False
 
-    m.X_col = composition(_X_NAMES, "hydrogen mass fraction X")
-    m.Y_col = composition(_Y_NAMES, "helium mass fraction Y")
+    def composition(names, word, role):
+        cands = [c for c in df.columns if c not in taken and c != m.age_col
+                 and (_role_match(info[c][0], names) or word in words(c))
+                 and nuclide_of(c) is None]
+        return _pick([c for c in cands if is_fraction(c, role)], role, notes)
+
+    m.X_col = composition(_X_NAMES, "hydrogen", "hydrogen mass fraction X")
+    m.Y_col = composition(_Y_NAMES, "helium", "helium mass fraction Y")
+    m.Z_col = composition(_Z_NAMES, "metals", "metal mass fraction Z")
+    nuclides: dict[str, list[str]] = {}
+    for c in df.columns:
+        nuc = nuclide_of(c)
+        if nuc is not None and c not in taken and pd.api.types.is_numeric_dtype(df[c]):
+            nuclides.setdefault(nuc, []).append(c)
+    for nuc, cols in nuclides.items():
+        col = _pick(cols, f"mass fraction of {nuc}", notes)
+        if col is not None and is_fraction(col, f"the mass fraction of {nuc}"):
+            m.nuclide_cols[nuc] = col
+    if m.nuclide_cols and (m.X_col or m.Y_col or m.Z_col):
+        notes.append(f"nuclide columns ({', '.join(m.nuclide_cols.values())}) are not used: the X/Y/Z "
+                     "columns give the composition")
+        m.nuclide_cols = {}
 
     labels = [c for c in df.columns if info[c][0] in _LABEL_NAMES]
     if labels:
@@ -644,6 +846,7 @@ class TrackData:
     label: np.ndarray | None = None
     X: np.ndarray | None = None
     Y: np.ndarray | None = None
+    metals: dict[str, float] | None = None
     bad_rows: list[int] = field(default_factory=list)
     bad_reasons: dict[int, str] = field(default_factory=dict)
 
@@ -702,7 +905,8 @@ def apply_mapping(df: pd.DataFrame, mapping: ColumnMapping) -> TrackData:
     if mapping.T_col is None:
         raise TableError(f"no temperature column chosen; columns found: {found}")
     for role, col in (("density", mapping.rho_col), ("temperature", mapping.T_col), ("age", mapping.age_col),
-                      ("label", mapping.label_col), ("X", mapping.X_col), ("Y", mapping.Y_col)):
+                      ("label", mapping.label_col), ("X", mapping.X_col), ("Y", mapping.Y_col),
+                      ("Z", mapping.Z_col), *((f"{n} fraction", c) for n, c in (mapping.nuclide_cols or {}).items())):
         if col is not None and col not in df.columns:
             raise TableError(f"the {role} column {col!r} is not in the table; columns found: {found}")
     if mapping.units not in ("cgs", "si"):
@@ -756,6 +960,53 @@ def apply_mapping(df: pd.DataFrame, mapping: ColumnMapping) -> TrackData:
 
     X = fraction(mapping.X_col)
     Y = fraction(mapping.Y_col)
+    Z = fraction(mapping.Z_col)
+    metals = None
+    from_nuclides = False
+    if X is None and Y is None and Z is None and mapping.nuclide_cols:
+        # nuclide columns: X = hydrogen isotopes, Y = helium isotopes, the rest are metals in the
+        # track's mean metal mixture (the equation of state sees metals only through mu and ye)
+        from ..physics import NUCLIDES
+        parts = {n: fraction(c) for n, c in mapping.nuclide_cols.items()}
+        for nuc in parts:
+            if nuc not in NUCLIDES:
+                raise TableError(f"unknown nuclide {nuc!r} in the composition columns; "
+                                 f"known: {', '.join(NUCLIDES)}")
+        from_nuclides = True
+        zeros = np.zeros(n)
+
+        def total(names):
+            cols = [v for k, v in parts.items() if k in names]
+            return np.sum(cols, axis=0) if cols else zeros.copy()
+
+        hyd = [k for k in parts if NUCLIDES[k].Z == 1]
+        hel = [k for k in parts if NUCLIDES[k].Z == 2]
+        met = [k for k in parts if NUCLIDES[k].Z > 2]
+        X, Y = total(hyd), total(hel)
+        Z = total(met) if met else None
+        if met:
+            means = {k: float(np.nanmean(parts[k])) if np.isfinite(parts[k]).any() else 0.0 for k in met}
+            s_m = sum(means.values())
+            metals = {k: v / s_m for k, v in means.items()} if s_m > 0 else None
+        with np.errstate(invalid="ignore"):
+            short = np.abs(X + Y + (Z if Z is not None else 0.0) - 1.0) > 0.01
+        if Z is not None:
+            flag(short, lambda i: f"the nuclide fractions add up to {X[i] + Y[i] + Z[i]:.6g}, not 1")
+    if Z is not None:
+        # any two of X, Y, Z give the third
+        if X is None and Y is None:
+            raise TableError("a metal (Z) column alone does not give the composition; map X or Y too")
+        if X is None:
+            X = 1.0 - Y - Z
+        elif Y is None:
+            Y = 1.0 - X - Z
+        elif not from_nuclides:
+            with np.errstate(invalid="ignore"):
+                off = np.abs(X + Y + Z - 1.0) > 0.01
+            flag(off, lambda i: f"X + Y + Z = {X[i] + Y[i] + Z[i]:.6g} is not 1 (within 0.01)")
+        with np.errstate(invalid="ignore"):
+            neg = (X < -1e-6) | (Y < -1e-6)
+        flag(neg, lambda i: f"X = {X[i]:.6g}, Y = {Y[i]:.6g}, Z = {Z[i]:.6g} do not add up to 1")
     if X is not None and Y is not None:
         with np.errstate(invalid="ignore"):
             over = (X + Y > 1.0 + 1e-6) & (X <= 1) & (Y <= 1) & (X >= 0) & (Y >= 0)
@@ -778,5 +1029,5 @@ def apply_mapping(df: pd.DataFrame, mapping: ColumnMapping) -> TrackData:
         raise TableError(f"none of the {n} rows has a usable density and temperature "
                          f"(density column {mapping.rho_col!r}, temperature column {mapping.T_col!r}; "
                          f"columns found: {found}); first problems: {first}")
-    return TrackData(log_rho=log_rho, log_T=log_T, age=age, label=label, X=X, Y=Y,
+    return TrackData(log_rho=log_rho, log_T=log_T, age=age, label=label, X=X, Y=Y, metals=metals,
                      bad_rows=bad, bad_reasons=bad_reasons)

@@ -20,11 +20,13 @@ import pandas as pd
 from . import constants as const
 from .composition import NUCLIDES, Composition
 from .eos import ThermoState, evaluate, validate_options
+from . import regimes
 from .regimes import (COUPLING_GAMMA, CRYSTALLIZATION_GAMMA, DEGENERACY_ETA, HALF_IONIZATION, PAIR_ONSET,
                       RELATIVISTIC_XF)
 
 __all__ = ["PAIR_ONSET", "RHO_YE_RELATIVISTIC", "BOUNDARY_FIELDS", "CROSSING_COLUMNS", "TrackState",
-           "boundary_fields", "find_crossings", "downsample", "evaluate_track", "track_report"]
+           "boundary_fields", "find_crossings", "downsample", "evaluate_track", "track_report", "ignition_key",
+           "COMPOSITION_COLUMNS"]
 
 
 #: rho * ye (g cm^-3) at which the electron Fermi momentum equals m_e c
@@ -46,6 +48,9 @@ BOUNDARY_FIELDS: dict[str, tuple[str, float]] = {
     "h_ionization": ("ion_H", HALF_IONIZATION),
     "he_ionization": ("ion_He2", HALF_IONIZATION),
 }
+
+#: Columns :func:`track_report` adds to the crossings: the composition the crossing was found with.
+COMPOSITION_COLUMNS = ["X", "Y", "Z", "composition"]
 
 #: Columns of the DataFrame returned by :func:`find_crossings`.
 CROSSING_COLUMNS = ["boundary", "row", "row_after", "fraction", "log_rho", "log_T", "age", "direction"]
@@ -249,7 +254,7 @@ def _metal_mixture(comp: Composition) -> str | dict[str, float]:
 
 
 def evaluate_track(log_rho, log_T, comp: Composition, X=None, Y=None, valid=None, *,
-                   composition_step: float = _COMPOSITION_STEP, **physics_options) -> TrackState:
+                   composition_step: float = _COMPOSITION_STEP, processes=(), **physics_options) -> TrackState:
     """The full thermodynamic state at every row of a track.
 
     Parameters
@@ -265,6 +270,10 @@ def evaluate_track(log_rho, log_T, comp: Composition, X=None, Y=None, valid=None
         Rows to evaluate; the others are NaN in the output.
     composition_step : float
         Per-row (X, Y) are rounded to this step before grouping (1e-4).
+    processes : iterable of str
+        Burning processes (:data:`thermoplane.physics.burning.PROCESSES`) whose
+        energy generation rate ``eps_<process>`` (erg g^-1 s^-1) is added, with
+        each row's own composition.
     **physics_options
         Passed to :func:`thermoplane.physics.eos.evaluate`.
 
@@ -324,7 +333,15 @@ def evaluate_track(log_rho, log_T, comp: Composition, X=None, Y=None, valid=None
         scale = np.where(total > 1.0, total, 1.0)   # rounding may push X + Y just above 1
         Xr, Yr = Xr / scale, Yr / scale
 
+    processes = tuple(processes or ())
+    if processes:
+        from . import burning
+        for p in processes:
+            if p not in burning.PROCESSES:
+                raise ValueError(f"unknown burning process {p!r}; choose from {', '.join(burning.PROCESSES)}")
     out = {name: np.full(n, np.nan) for name in ThermoState.__dataclass_fields__}
+    for p in processes:
+        out[f"eps_{p}"] = np.full(n, np.nan)
     idx = np.nonzero(ok)[0]
     if idx.size:
         if not per_row:
@@ -343,6 +360,8 @@ def evaluate_track(log_rho, log_T, comp: Composition, X=None, Y=None, valid=None
             state = evaluate(10.0 ** log_rho[rows], 10.0 ** log_T[rows], group_comp, **physics_options)
             for name, values in state.as_dict().items():
                 out[name][rows] = np.broadcast_to(values, rows.shape)
+            for p in processes:
+                out[f"eps_{p}"][rows] = burning.epsilon(10.0 ** log_rho[rows], 10.0 ** log_T[rows], group_comp, p)
             ye_full[rows] = group_comp.ye
     ye_full[~ok] = np.nan
     result = TrackState(out)
@@ -398,8 +417,33 @@ def boundary_fields(state, comp_or_ye=None) -> dict[str, np.ndarray]:
         }
 
 
+def ignition_key(process: str, level: float) -> str:
+    """Crossing key of an ignition contour: ``ignition_<process>_<level>`` (level in erg g^-1 s^-1)."""
+    return f"ignition_{process}_{float(level):g}"
+
+
+def _line_fields(state, keys) -> dict[str, tuple[np.ndarray, float]]:
+    """(field, level) of every boundary key: :data:`BOUNDARY_FIELDS` first, then any further line
+    :mod:`thermoplane.physics.regimes` defines (its field's zero is the line), so new lines join."""
+    known = boundary_fields(state)
+    out = {}
+    for key in keys:
+        if key in BOUNDARY_FIELDS:
+            out[key] = (known[key], BOUNDARY_FIELDS[key][1])
+        else:
+            with np.errstate(divide="ignore", invalid="ignore"):
+                out[key] = (np.asarray(regimes._FIELDS[key](state), dtype=float), 0.0)
+    return out
+
+
+def track_boundaries() -> tuple[str, ...]:
+    """Every boundary a track report can look for: the lines of :mod:`thermoplane.physics.regimes`."""
+    extra = [k for k in getattr(regimes, "BOUNDARY_KEYS", ()) if k not in BOUNDARY_FIELDS and k in regimes._FIELDS]
+    return tuple(BOUNDARY_FIELDS) + tuple(extra)
+
+
 def track_report(log_rho, log_T, comp: Composition, age=None, valid=None, X=None, Y=None,
-                 boundaries=None, frontiers: bool = False,
+                 boundaries=None, ignition=(), frontiers: bool = False,
                  **physics_options) -> tuple[pd.DataFrame, pd.DataFrame]:
     """Evaluate a track and find where it crosses each boundary.
 
@@ -410,7 +454,11 @@ def track_report(log_rho, log_T, comp: Composition, age=None, valid=None, X=None
         fields of an uploaded track).
     comp : Composition
     boundaries : iterable of str, optional
-        Keys of :data:`BOUNDARY_FIELDS` to look for (default: all).
+        Keys of :func:`track_boundaries` to look for (default: all, including
+        any line added to :mod:`thermoplane.physics.regimes`).
+    ignition : iterable of (process, level)
+        Ignition contours to look for: where log10 eps_process crosses
+        log10 level (erg g^-1 s^-1); keys from :func:`ignition_key`.
     frontiers : bool
         Also list crossings of the ignition curves eps_nuc = eps_nu and of the
         electron-capture thresholds (keys and fields of
@@ -425,23 +473,39 @@ def track_report(log_rho, log_T, comp: Composition, age=None, valid=None, X=None
         One row per track row: every ThermoState field, ``ye_full`` and the
         relativity parameter ``x_F`` (NaN on rows not evaluated).
     crossings : pandas.DataFrame
-        As from :func:`find_crossings`.
+        As from :func:`find_crossings`, plus :data:`COMPOSITION_COLUMNS`: X,
+        Y, Z at the crossing (interpolated between the two rows like log rho)
+        and ``composition`` = "track" (the track's own per-row composition) or
+        "panel" (``comp``, the same for every row).
 
     Raises
     ------
     ValueError
-        An unknown boundary key, or any error of :func:`evaluate_track`.
+        An unknown boundary key or process, a level that is not > 0, or any
+        error of :func:`evaluate_track`.
     """
-    keys = list(BOUNDARY_FIELDS) if boundaries is None else list(boundaries)
+    allowed = track_boundaries()
+    keys = list(allowed) if boundaries is None else list(boundaries)
     for key in keys:
-        if key not in BOUNDARY_FIELDS:
-            raise ValueError(f"unknown boundary {key!r}; boundaries are {', '.join(BOUNDARY_FIELDS)}")
-    state = evaluate_track(log_rho, log_T, comp, X=X, Y=Y, valid=valid, **physics_options)
-    fields = boundary_fields(state)
+        if key not in allowed:
+            raise ValueError(f"unknown boundary {key!r}; boundaries are {', '.join(allowed)}")
+    ignition = [(str(p), float(lv)) for p, lv in (ignition or ())]
+    for p, lv in ignition:
+        if not (math.isfinite(lv) and lv > 0):
+            raise ValueError(f"ignition level of {p!r} must be a number > 0 (erg g^-1 s^-1), got {lv}")
+    processes = tuple(dict.fromkeys(p for p, _ in ignition))
+    state = evaluate_track(log_rho, log_T, comp, X=X, Y=Y, valid=valid, processes=processes, **physics_options)
+    lines = _line_fields(state, keys)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        for p, lv in ignition:
+            eps = state[f"eps_{p}"]
+            lines[ignition_key(p, lv)] = (np.log10(np.where(eps > 0, eps, np.nan)), math.log10(lv))
     columns = {name: state[name] for name in ThermoState.__dataclass_fields__}
     columns["ye_full"] = state["ye_full"]
-    columns["x_F"] = fields["relativistic"]
-    crossings = find_crossings({k: fields[k] for k in keys}, {k: BOUNDARY_FIELDS[k][1] for k in keys},
+    columns["x_F"] = boundary_fields(state)["relativistic"]
+    for p in processes:
+        columns[f"eps_{p}"] = state[f"eps_{p}"]
+    crossings = find_crossings({k: v[0] for k, v in lines.items()}, {k: v[1] for k, v in lines.items()},
                                log_rho, log_T, age=age, valid=state["valid"])
     if frontiers:
         from .frontiers import track_fields
@@ -451,4 +515,22 @@ def track_report(log_rho, log_T, comp: Composition, age=None, valid=None, X=None
             both = [c for c in (crossings, more) if len(c)]
             crossings = pd.concat(both, ignore_index=True).sort_values(
                 ["row", "fraction"], kind="stable").reset_index(drop=True)
+    crossings = _with_composition(crossings, comp, X, Y, len(state["valid"]))
     return pd.DataFrame(columns), crossings
+
+
+def _with_composition(crossings: pd.DataFrame, comp: Composition, X, Y, n: int) -> pd.DataFrame:
+    """X, Y, Z of each crossing: the rows' own (interpolated) or the panel's."""
+    out = crossings.copy()
+    if X is None and Y is None:
+        out["X"], out["Y"], out["Z"] = comp.hydrogen, comp.helium, comp.metals
+        out["composition"] = "panel"
+        return out
+    Xa = _as_1d("X", X, n) if X is not None else 1.0 - _as_1d("Y", Y, n) - comp.metals
+    Ya = _as_1d("Y", Y, n) if Y is not None else 1.0 - Xa - comp.metals
+    r, ra, w = out["row"].to_numpy(), out["row_after"].to_numpy(), out["fraction"].to_numpy()
+    xs = Xa[r] + w * (Xa[ra] - Xa[r]) if len(out) else np.zeros(0)
+    ys = Ya[r] + w * (Ya[ra] - Ya[r]) if len(out) else np.zeros(0)
+    out["X"], out["Y"], out["Z"] = xs, ys, 1.0 - xs - ys
+    out["composition"] = "track"
+    return out

@@ -12,7 +12,8 @@ from dash import Input, Output, State, dcc, no_update
 
 from ...physics import neutrinos, regimes
 
-from .map import ViewError, build, parse_view, quantity, view_from_store
+from ..view import ViewError, parse_view, quantity, track_overlay, view_from_store
+from .map import build
 
 log = logging.getLogger(__name__)
 
@@ -65,13 +66,13 @@ def _checked(store):
     return comp, opts, clean
 
 
-def html_export(n, store):
-    """Callback body: dict for dcc.Download with the standalone HTML figure, and a message."""
+def html_export(n, store, tracks=None, colour_by=None):
+    """Callback body: dict for dcc.Download with the standalone HTML figure (tracks included), and a message."""
     if not n:
         return no_update, ""
     try:
         comp, opts, view = _checked(store)
-        fig, _, _ = build(comp, opts, view)
+        fig, _, _ = build(comp, opts, view, track_overlay(tracks, colour_by, comp, opts, view))
         html = fig.to_html(include_plotlyjs=True, full_html=True,
                            config={"displaylogo": False,
                                    "toImageButtonOptions": {"format": "png", "scale": 3}})
@@ -103,8 +104,8 @@ def csv_export(n, store):
 
 def register(app) -> None:
     app.callback(Output("download-html", "data"), Output("export-message", "children", allow_duplicate=True),
-                 Input("export-html", "n_clicks"), State("view-store", "data"),
-                 prevent_initial_call=True)(html_export)
+                 Input("export-html", "n_clicks"), State("view-store", "data"), State("tracks-store", "data"),
+                 State("tracks-colour-by", "value"), prevent_initial_call=True)(html_export)
     app.callback(Output("download-csv", "data"), Output("export-message", "children", allow_duplicate=True),
                  Input("export-csv", "n_clicks"), State("view-store", "data"),
                  prevent_initial_call=True)(csv_export)

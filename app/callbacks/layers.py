@@ -15,6 +15,7 @@ import numpy as np
 from ...physics import contours, frontiers, neutrinos
 
 from .. import figures
+from ..figures import ignition_label, level_text  # noqa: F401 - re-exported for callers of this module
 
 __all__ = ["boundary_lines", "ignition_lines", "mass_lines", "frontier_lines", "categories",
            "NU_PROCESS_CATEGORIES"]
@@ -34,24 +35,8 @@ def ignition_lines(grid, processes, levels) -> list[figures.Line]:
             x, y = contours.grid_ignition(grid, process, level)
             if x.size:
                 out.append(figures.Line(f"ignition_{process}_{level:g}", ignition_label(process, level),
-                                        x, y, style="ignition", width=1.6))
+                                        x, y, style=figures.ignition_style(process), width=1.6))
     return out
-
-
-_SHORT = {"pp": "pp", "cno": "CNO", "triple_alpha": "3α", "carbon": "C+C"}
-_SUPERSCRIPT = str.maketrans("0123456789-", "⁰¹²³⁴⁵⁶⁷⁸⁹⁻")
-
-
-def level_text(level: float) -> str:
-    """1, 10³, 2.5e+04 -> short text for a label."""
-    e = np.log10(level)
-    if e == round(e) and abs(e) >= 2:
-        return "10" + str(int(round(e))).translate(_SUPERSCRIPT)
-    return f"{level:g}"
-
-
-def ignition_label(process: str, level: float) -> str:
-    return f"ε_{_SHORT.get(process, process)} = {level_text(level)}"
 
 
 def _mass_label(m: float) -> str:

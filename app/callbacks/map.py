@@ -13,13 +13,13 @@ import numpy as np
 from dash import Input, Output, State, no_update
 
 from ... import physics as ph
-from ...physics import eos, plane, regimes
+from ...physics import impact, plane, regimes
 
 from .. import figures
-from ..state import COLOR_CHOICES, CONTROLS, DEFAULT_VIEW, QUANTITY_NAMES, UI_RESOLUTION, controls_to_view, \
-    encode_view, parse_number_list
-from . import layers
-from .composition import CompositionError, MixError, composition_from_view, number, readout
+from ..state import COLOR_CHOICES, CONTROLS, DEFAULT_VIEW, controls_to_view, encode_view
+from ..view import (ASINH_SCALES, ViewError, _range, composition_from_inputs, jsonable, overlay_lines, parse_view,  # noqa: F401
+                    physics_options, quantity, track_overlay, view_from_store)
+from .composition import readout
 
 log = logging.getLogger(__name__)
 
@@ -30,77 +30,8 @@ __all__ = ["MESSAGES", "ViewError", "parse_view", "physics_options", "map_figure
 MESSAGES = ("comp-message", "mix-message", "phys-message", "map-range-message", "map-levels-message",
             "map-masses-message", "map-message")
 GENERIC_ERROR = "Something went wrong while drawing the map; the server log has the details."
-_QUANTITY = {q.name: q for q in plane.QUANTITIES}
-
-
-class ViewError(ValueError):
-    """A bad control value, with the id of the message area next to it."""
-
-    def __init__(self, where: str, message: str):
-        super().__init__(message)
-        self.where = where
-
-
-def composition_from_inputs(X, Y, Z) -> ph.Composition:
-    """X, Y, Z from the browser -> Composition (solar-like metals); ValueError with a message."""
-    return composition_from_view({"X": X, "Y": Y, "Z": Z, "metals": DEFAULT_VIEW["metals"]})
-
-
-def physics_options(view: dict) -> dict:
-    """The equation-of-state options of a view, checked by physics.eos.validate_options."""
-    try:
-        return eos.validate_options(electrons=view["electrons"], ionization=view["ionization"],
-                                    coulomb=bool(view["coulomb"]), pairs=bool(view["pairs"]))
-    except ValueError as err:
-        raise ViewError("phys-message", str(err)) from None
-
-
-def quantity(name: str):
-    """The plane.Quantity of a name; ViewError for an unknown one."""
-    if name not in _QUANTITY:
-        raise ViewError("map-message", f"unknown shaded quantity {name!r}; choose one of {', '.join(QUANTITY_NAMES)}")
-    return _QUANTITY[name]
-
-
-def _range(pair, name: str, limits) -> tuple[float, float]:
-    try:
-        lo = number(pair[0], f"{name} from", *limits)
-        hi = number(pair[1], f"{name} to", *limits)
-    except ValueError as err:
-        raise ViewError("map-range-message", str(err)) from None
-    if not lo < hi:
-        raise ViewError("map-range-message", f"{name}: 'from' ({lo:g}) must be below 'to' ({hi:g})")
-    return lo, hi
-
-
-def parse_view(view: dict):
-    """Check a view; returns (comp, options, view with numbers in place).
-
-    Raises
-    ------
-    ViewError
-        With ``where`` = the message area of the control at fault.
-    """
-    try:
-        comp = composition_from_view(view)
-    except MixError as err:
-        raise ViewError("mix-message", str(err)) from None
-    except CompositionError as err:
-        raise ViewError("comp-message", str(err)) from None
-    opts = physics_options(view)
-    lr = _range(view["log_rho"], "log ρ", plane.LOG_RHO_LIMITS)
-    lt = _range(view["log_T"], "log T", plane.LOG_T_LIMITS)
-    try:
-        n = number(view["resolution"], "resolution", *UI_RESOLUTION)
-    except ValueError as err:
-        raise ViewError("map-range-message", str(err)) from None
-    if n != int(n):
-        raise ViewError("map-range-message", f"resolution = {n:g} must be a whole number")
-    quantity(view["quantity"])
-    if view.get("colorscale") not in COLOR_CHOICES:
-        raise ViewError("map-message", f"unknown colour scale {view.get('colorscale')!r}")
-    clean = {**view, "log_rho": lr, "log_T": lt, "resolution": int(n)}
-    return comp, opts, clean
+#: Legend words for the grey region where no value is physical.
+UNPHYSICAL_LABEL = "no physical value: P ≤ 0 with these options"
 
 
 def _colours(q, choice: str):
@@ -111,26 +42,111 @@ def _colours(q, choice: str):
     return scale, (q.centre if diverging else None)
 
 
-def overlay_lines(grid, comp, view: dict, opts: dict) -> tuple[list, dict]:
-    """Every line the view asks for, and messages for the list fields that could not be read."""
-    lines = layers.boundary_lines(grid, comp, opts, set(view["layers"]))
-    messages = {}
-    if view.get("ignition") and view.get("processes"):
-        try:
-            levels = parse_number_list(view.get("levels"), "ε levels")
-            lines += layers.ignition_lines(grid, view["processes"], levels)
-        except ValueError as err:
-            messages["map-levels-message"] = str(err)
-    lines += layers.frontier_lines(grid, comp, view)
-    if view.get("mass_lines"):
-        try:
-            masses = parse_number_list(view.get("masses"), "masses")
-            if any(m > 1e4 or m < 1e-3 for m in masses):
-                raise ValueError("masses must be between 0.001 and 10000 M☉")
-            lines += layers.mass_lines(grid, masses)
-        except ValueError as err:
-            messages["map-masses-message"] = str(err)
-    return lines, messages
+#: Colour range of a sequential map: these percentiles of its pixels, so one spike (Γ₁ next to the
+#: pressure-ionization band) does not turn the whole map one colour. Our choice; common practice.
+ROBUST_PERCENTILES = (1.0, 99.0)
+
+
+def _centred_scale(name: str, lo: float, hi: float, centre: float) -> list:
+    """A diverging colour scale stretched so that its middle colour sits at ``centre`` in [lo, hi]."""
+    import plotly.colors as pc
+    f0 = min(max((centre - lo) / (hi - lo), 0.02), 0.98)
+    out = []
+    for pos, colour in pc.get_colorscale(name):
+        out.append([pos * 2 * f0 if pos <= 0.5 else f0 + (pos - 0.5) * 2 * (1 - f0), colour])
+    return out
+
+_IMPACT_COLOURS = ("#d9d9d9", "#0072B2", "#D55E00", "#009E73", "#CC79A7", "#E69F00", "#56B4E9", "#F0E442")
+
+
+def _shading(comp, opts, view, grid, q):
+    """The values to shade for quantity ``q`` (the plane's field, or an impact map)."""
+    if not q.name.startswith("impact_"):
+        return grid.get(q.name)
+    n = int(view["resolution"])
+    lr, lt = tuple(view["log_rho"]), tuple(view["log_T"])
+    if q.categorical:
+        which, _ = impact.impact_categories(comp, lr, lt, n, **opts)
+        return which
+    rest = q.name[len("impact_"):]
+    field = next(f for f in impact.IMPACT_FIELDS if rest.endswith("_" + f))
+    return impact.impact_percent(comp, rest[:-len(field) - 1], field, lr, lt, n, **opts)
+
+
+def _nice_ticks(lo: float, hi: float, n: int = 6) -> np.ndarray:
+    span = hi - lo
+    raw = span / max(n - 1, 1)
+    mag = 10.0 ** np.floor(np.log10(raw))
+    step = mag * min((1, 2, 2.5, 5, 10), key=lambda m: abs(m * mag - raw))
+    ticks = np.arange(np.ceil(lo / step) * step, hi + 1e-9 * span, step)
+    return ticks[(ticks - lo > 0.25 * step) & (hi - ticks > 0.25 * step)]
+
+
+def _fmt_tick(v: float) -> str:
+    return f"{v:.4g}"
+
+
+def _asinh_ticks(lo: float, hi: float, unit: float):
+    """Tick positions (in asinh units) and texts (in the quantity's units) for a signed-log colour bar:
+    0 and powers of ten, outward from 0, none closer to the last than a twelfth of the bar."""
+    gap = (hi - lo) / 12.0
+    pos, vals = [], []
+    if lo <= 0 <= hi:
+        pos.append(0.0)
+        vals.append(0.0)
+    for sign in (1, -1):
+        last = 0.0
+        for k in range(-6, 16):
+            v = sign * unit * 10.0 ** k
+            p = float(np.arcsinh(v / unit))
+            if lo + 0.5 * gap <= p <= hi - 0.5 * gap and abs(p - last) >= gap:
+                pos.append(p)
+                vals.append(v)
+                last = p
+    order = np.argsort(pos)
+    return np.asarray(pos)[order], [f"{vals[i]:g}" for i in order]
+
+
+def _colour_range(z, q, mid, transform_unit):
+    """(z to draw, zmin, zmax, tick values, tick texts, clipped (low, high))."""
+    finite = z[np.isfinite(z)]
+    if transform_unit is not None:
+        with np.errstate(invalid="ignore"):
+            z = np.arcsinh(z / transform_unit)
+        finite = np.arcsinh(finite / transform_unit)
+    if finite.size == 0:
+        return z, None, None, None, None, (False, False)
+    if mid is not None:
+        # robust on each side of the centre separately: η runs from -30 to 1e8, and a symmetric
+        # range would spend half the colours on values that do not occur
+        c = mid if transform_unit is None else 0.0
+        below, above = finite[finite < c], finite[finite > c]
+        lo = float(np.percentile(below, ROBUST_PERCENTILES[0])) if below.size else c
+        hi = float(np.percentile(above, ROBUST_PERCENTILES[1])) if above.size else c
+        span = max(hi - lo, 1e-6)
+        lo, hi = min(lo, c - 0.05 * span), max(hi, c + 0.05 * span)
+    else:
+        lo, hi = (float(v) for v in np.percentile(finite, ROBUST_PERCENTILES))
+        if not hi > lo:
+            lo, hi = lo - 0.5, hi + 0.5
+    clipped = (bool(finite.min() < lo - 1e-9 * abs(lo)), bool(finite.max() > hi + 1e-9 * abs(hi)))
+    if transform_unit is not None:
+        vals, texts = _asinh_ticks(lo, hi, transform_unit)
+    else:
+        vals = _nice_ticks(lo, hi)
+        texts = [_fmt_tick(v) for v in vals]
+    vals, texts = list(vals), list(texts)
+    # the ends of the colour bar say where the colours stop: "≤ lo", "≥ hi" when the data go beyond
+    for end, where, mark in ((lo, 0, "≤ "), (hi, None, "≥ ")):
+        label = _fmt_tick(end if transform_unit is None else transform_unit * np.sinh(end))
+        is_clipped = clipped[0] if mark == "≤ " else clipped[1]
+        if where == 0:
+            vals.insert(0, lo)
+            texts.insert(0, (mark if is_clipped else "") + label)
+        else:
+            vals.append(hi)
+            texts.append((mark if is_clipped else "") + label)
+    return z, lo, hi, vals, texts, clipped
 
 
 def build(comp, opts: dict, view: dict, extra_traces=()):
@@ -139,28 +155,47 @@ def build(comp, opts: dict, view: dict, extra_traces=()):
     grid = plane.plane_grid(comp, tuple(view["log_rho"]), tuple(view["log_T"]), n, n, **opts)
     q = quantity(view["quantity"])
     lines, messages = overlay_lines(grid, comp, view, opts)
+    # where P <= 0 (the Coulomb term beyond the ideal pressure under comparison options) no value is
+    # physical: drawn grey with a legend entry, never shaded as if it were a regime
+    unphysical = ~np.isfinite(np.asarray(grid.get("log_P"), dtype=float))
     common = dict(lines=lines, presentation=bool(view.get("presentation")), customdata=grid.regime,
-                  extra_traces=extra_traces)
-    if q.categorical and q.name != "regime":
+                  extra_traces=extra_traces,
+                  unphysical=unphysical if unphysical.any() else None,
+                  unphysical_label=UNPHYSICAL_LABEL)
+    if q.categorical and q.name not in ("regime",) and not q.name.startswith("impact_"):
         fig = figures.plane_figure(grid.log_rho, grid.log_T, grid.get(q.name), z_label=q.label,
                                    categorical=layers.categories(q.name), **common)
-    elif q.categorical:
+    elif q.categorical and q.name == "regime":
         fig = figures.plane_figure(grid.log_rho, grid.log_T, grid.regime, z_label=q.label,
                                    categorical=[(r.label, r.colour) for r in regimes.REGIMES], **common)
+    elif q.categorical:
+        which = _shading(comp, opts, view, grid, q).astype(float)
+        which[which < 0] = np.nan
+        labels = impact.category_labels()
+        fig = figures.plane_figure(grid.log_rho, grid.log_T, which, z_label=q.label,
+                                   categorical=[(lab, _IMPACT_COLOURS[i % len(_IMPACT_COLOURS)])
+                                                for i, lab in enumerate(labels)], **common)
     else:
         scale, mid = _colours(q, view.get("colorscale", "auto"))
-        z = grid.get(q.name)
+        z = np.asarray(_shading(comp, opts, view, grid, q), dtype=float)
         if not np.any(np.isfinite(z)):
             messages["map-message"] = f"{q.label} is not available for this plane (no value anywhere in view)"
-        z_range = None
-        if mid is not None and np.any(np.isfinite(z)):
-            # symmetric about the centre and clipped to where most of the map lies, so the colours
-            # still separate near the centre (log P_rad/P_gas spans 60 dex across the default plane)
-            half = float(np.nanpercentile(np.abs(z - mid), 90))
-            half = max(half, 1e-6)
-            z_range = (mid - half, mid + half)
+        unit = ASINH_SCALES.get(q.name)
+        z, lo, hi, vals, texts, clipped = _colour_range(z, q, mid, unit)
+        notes = []
+        if any(clipped):
+            notes.append(f"colours clipped to the {ROBUST_PERCENTILES[0]:g}–{ROBUST_PERCENTILES[1]:g} % range")
+        if mid is not None and lo is not None:
+            scale = _centred_scale(scale, lo, hi, mid if unit is None else 0.0)
+        if unit is not None:
+            notes.append("signed-log scale")
+        if q.name.startswith("eps_"):
+            notes.append(f"blank below 10^{plane.EPS_FLOOR:g} erg/g/s")
         fig = figures.plane_figure(grid.log_rho, grid.log_T, z, z_label=q.label, colorscale=scale,
-                                   z_mid=mid, z_range=z_range, **common)
+                                   z_mid=None if lo is not None else mid,
+                                   z_range=(lo, hi) if lo is not None else None,
+                                   colorbar_ticks=(vals, texts) if vals is not None else None,
+                                   colorbar_note="; ".join(notes), hover_value=unit is None, **common)
     return fig, grid, messages
 
 
@@ -182,18 +217,6 @@ def _empty_messages() -> dict:
     return {m: "" for m in MESSAGES}
 
 
-def track_overlay(tracks_data, colour_by, comp, opts) -> list:
-    """Traces of the visible stellar tracks (app.callbacks.tracks), from its cache."""
-    if not tracks_data or not tracks_data.get("tracks"):
-        return []
-    from .tracks import overlay_traces
-    try:
-        return overlay_traces(tracks_data, comp, opts, colour_by)
-    except Exception:                                  # a track never takes the map down
-        log.exception("track overlay failed")
-        return []
-
-
 def update_map(tracks=None, track_colour_by=None, **controls) -> dict:
     """Callback body: control values (keyed like state.CONTROLS) -> outputs dict.
 
@@ -209,10 +232,10 @@ def update_map(tracks=None, track_colour_by=None, **controls) -> dict:
         view = controls_to_view(**controls)
         comp, opts, clean = parse_view(view)
         out["readout"] = readout(comp)
-        fig, grid, messages = build(comp, opts, clean, track_overlay(tracks, track_colour_by, comp, opts))
+        fig, grid, messages = build(comp, opts, clean, track_overlay(tracks, track_colour_by, comp, opts, clean))
         out.update(messages)
         out["figure"] = fig
-        out["view"] = {"view": _jsonable(clean), "query": encode_view(clean)}
+        out["view"] = {"view": jsonable(clean), "query": encode_view(clean)}
     except ViewError as err:
         out[err.where] = str(err)
     except ValueError as err:
@@ -221,32 +244,6 @@ def update_map(tracks=None, track_colour_by=None, **controls) -> dict:
         log.exception("map callback failed")
         out["map-message"] = GENERIC_ERROR
     return out
-
-
-def _json_safe(v):
-    """Values a browser store can hold: huge integers and non-finite floats become text."""
-    if isinstance(v, bool) or v is None or isinstance(v, str):
-        return v
-    if isinstance(v, int):
-        return v if abs(v) < 2**53 else str(v)
-    if isinstance(v, float):
-        return v if np.isfinite(v) else str(v)
-    if isinstance(v, (list, tuple)):
-        return [_json_safe(x) for x in v]
-    return str(v)
-
-
-def _jsonable(view: dict) -> dict:
-    return {k: _json_safe(v) for k, v in view.items()}
-
-
-def view_from_store(data) -> dict:
-    """The view kept in the browser by :func:`update_map` (tuples restored)."""
-    v = dict((data or {}).get("view") or DEFAULT_VIEW)
-    for k in ("log_rho", "log_T", "layers", "processes"):
-        v[k] = tuple(v.get(k) or ())
-    v["mix"] = tuple(tuple(r) for r in v.get("mix") or ())
-    return {**DEFAULT_VIEW, **v}
 
 
 def register(app) -> None:

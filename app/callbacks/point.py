@@ -16,11 +16,12 @@ from dash import Input, Output, html, no_update
 from ... import physics as ph
 from ...physics import neutrinos
 
-from .map import ViewError, parse_view, view_from_store
+from ..view import ViewError, parse_view, view_from_store
 
 log = logging.getLogger(__name__)
 
-__all__ = ["SI", "to_si", "point_values", "state_table", "as_json", "as_csv", "pin_point", "register"]
+__all__ = ["SI", "to_si", "point_values", "state_table", "state_grid", "unphysical_warning", "as_json", "as_csv",
+           "pin_point", "register"]
 
 #: cgs unit -> (SI unit, factor: value_SI = factor * value_cgs).
 SI = {
@@ -82,12 +83,33 @@ def _fmt(v: float) -> str:
     return f"{v:.6g}" if math.isfinite(v) else str(v)
 
 
-def state_table(table_rows) -> html.Table:
-    return html.Table([
-        html.Thead(html.Tr([html.Th("quantity"), html.Th("value"), html.Th("unit"), html.Th("meaning")])),
-        html.Tbody([html.Tr([html.Td(n, className="mono"), html.Td(_fmt(v), className="mono num"),
-                             html.Td(u or "—"), html.Td(d)]) for n, v, u, d in table_rows]),
-    ], className="state-table", id="point-state-table")
+#: Columns of the pinned point's grid (AG Grid: sortable, saved as CSV by its button).
+GRID_COLUMNS = [
+    {"headerName": "quantity", "field": "quantity", "maxWidth": 140, "cellClass": "mono"},
+    {"headerName": "value", "field": "value", "type": "numericColumn", "maxWidth": 170, "cellClass": "mono",
+     "valueFormatter": {"function": "params.value == null ? '—' : Number(params.value).toPrecision(6)"}},
+    {"headerName": "unit", "field": "unit", "maxWidth": 190},
+    {"headerName": "meaning", "field": "meaning", "flex": 3},
+]
+
+
+def state_grid():
+    """The pinned point's every quantity, as a sortable grid with a CSV button (filled by :func:`pin_point`)."""
+    import dash_ag_grid as dag
+    return html.Div([
+        html.Div(html.Button("pinned point as CSV", id="point-state-table-csv", n_clicks=0, className="small"),
+                 className="button-row grid-bar"),
+        dag.AgGrid(id="point-state-table", columnDefs=GRID_COLUMNS, rowData=[], className="grid",
+                   defaultColDef={"sortable": True, "resizable": True, "flex": 1, "minWidth": 80},
+                   dashGridOptions={"theme": "themeBalham", "domLayout": "autoHeight", "suppressCellFocus": True},
+                   csvExportParams={"fileName": "thermoplane-point.csv"}),
+    ])
+
+
+def state_table(table_rows) -> list[dict]:
+    """Grid rows: quantity, value (None when not finite), unit, meaning."""
+    return [{"quantity": n, "value": v if math.isfinite(v) else None, "unit": u or "—", "meaning": d}
+            for n, v, u, d in table_rows]
 
 
 def as_json(point: dict, table_rows, units: str) -> str:
@@ -105,22 +127,40 @@ def as_csv(table_rows) -> str:
     return buf.getvalue()
 
 
+def unphysical_warning(values: dict, opts: dict, units: str = "cgs") -> str:
+    """A warning when the pinned point has no physical value (P <= 0), else ""."""
+    P = values.get("P", math.nan)
+    if math.isfinite(P) and P > 0:
+        return ""
+    shown, unit = to_si(P, "dyn cm^-2") if units == "si" else (P, "dyn cm^-2")
+    why = ("the Coulomb correction is larger than the ideal pressure"
+           if opts.get("coulomb") else "the pressure is not positive")
+    return (f"No physical value here: P = {shown:.3g} {unit} ≤ 0 with these options ({why}; "
+            f"electrons = {opts.get('electrons')}, ionization = {opts.get('ionization')}). The numbers below are "
+            "not physical: use Fermi–Dirac electrons with Saha ionization, or switch Coulomb off.")
+
+
 def pin_point(click, units, store):
-    """Callback body: (heading, table, JSON text, CSV text, message)."""
+    """Callback body: (heading, grid rows, JSON text, CSV text, message)."""
     try:
         if not click or not click.get("points"):
-            return "Click the map to pin a point.", None, "", "", ""
+            return "Click the map to pin a point.", [], "", "", ""
         pt = click["points"][0]
+        if pt.get("x") is None or pt.get("y") is None:
+            return no_update, no_update, no_update, no_update, ""
         log_rho, log_T = float(pt["x"]), float(pt["y"])
         view = view_from_store(store)
         comp, opts, _ = parse_view(view)
         values = point_values(comp, opts, log_rho, log_T)
         units = "si" if units == "si" else "cgs"
         table_rows = rows(values, units) + neutrino_rows(comp, log_rho, log_T, units)
-        heading = (f"Pinned: log ρ = {log_rho:.3f}, log T = {log_T:.3f}  "
-                   f"(ρ = {10 ** log_rho:.4g} g cm⁻³, T = {10 ** log_T:.4g} K)")
+        rho_text = (f"ρ = {10 ** (log_rho + 3):.4g} kg m⁻³" if units == "si"
+                    else f"ρ = {10 ** log_rho:.4g} g cm⁻³")
+        heading = (f"Pinned: log ρ = {log_rho:.3f}, log T = {log_T:.3f}  (log ρ in g cm⁻³; "
+                   f"{rho_text}, T = {10 ** log_T:.4g} K)")
         point = {"log_rho": log_rho, "log_T": log_T, "composition": comp.to_dict(), "options": opts}
-        return heading, state_table(table_rows), as_json(point, table_rows, units), as_csv(table_rows), ""
+        return (heading, state_table(table_rows), as_json(point, table_rows, units), as_csv(table_rows),
+                unphysical_warning(values, opts, units))
     except (ViewError, ValueError) as err:
         return no_update, no_update, no_update, no_update, str(err)
     except Exception:
@@ -129,8 +169,10 @@ def pin_point(click, units, store):
 
 
 def register(app) -> None:
+    app.clientside_callback("function(n){ return n > 0; }", Output("point-state-table", "exportDataAsCsv"),
+                            Input("point-state-table-csv", "n_clicks"), prevent_initial_call=True)
     app.callback(
-        Output("point-heading", "children"), Output("point-table", "children"),
+        Output("point-heading", "children"), Output("point-state-table", "rowData"),
         Output("point-json", "value"), Output("point-csv", "value"), Output("point-message", "children"),
         Input("plane-graph", "clickData"), Input("point-units", "value"), Input("view-store", "data"),
     )(pin_point)

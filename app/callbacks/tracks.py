@@ -19,13 +19,13 @@ import json
 import logging
 import numpy as np
 import pandas as pd
-from dash import ALL, Input, Output, State, ctx, dash_table, dcc, html, no_update
-
-from ...physics import regimes
+import dash_ag_grid as dag
+from dash import ALL, Input, Output, State, ctx, dcc, html, no_update
 
 from .. import figures
 from .. import tracks as tk
-from ..upload import MAX_BYTES, TableError
+from ..upload import DELIMITERS, MAX_BYTES, LayoutError, TableError, nuclide_of, preview_lines
+from ..view import comp_and_options, ignition_from_store, overlay_traces, stored_tracks  # noqa: F401
 
 log = logging.getLogger(__name__)
 
@@ -49,8 +49,6 @@ MAX_STORE_CHARS = 4_000_000
 GENERIC_ERROR = "Something went wrong with this track; the server log has the details."
 _ROW = "__row__"
 _NONE = "__none__"
-_REGIME_LABEL = {r.key: r.label for r in regimes.REGIMES}
-_REGIME_LABEL[""] = "not evaluated"
 
 
 # ----------------------------------------------------------------------------
@@ -68,6 +66,30 @@ def _scale(id_, label):
                                              {"label": " linear", "value": False}])], className="option-row")
 
 
+_DELIM_OPTIONS = [{"label": "automatic", "value": "auto"}] + [{"label": k, "value": k} for k in DELIMITERS]
+
+
+def reader_panel() -> html.Div:
+    """Shown when a file is text but cannot be split into a table: its first lines, and the choices
+    (delimiter, header line, skip lines that do not fit) to read it again."""
+    return html.Div([
+        html.Div(id="tracks-reader-title", className="field-label"),
+        html.Pre(id="tracks-reader-lines", className="reader-lines"),
+        html.Div([html.Label([html.Span("delimiter", className="field-label"),
+                              dcc.Dropdown(id="tracks-reader-delim", options=_DELIM_OPTIONS, value="auto",
+                                           clearable=False, className="dropdown")], className="field"),
+                  html.Label([html.Span("header line", className="field-label"),
+                              dcc.Input(id="tracks-reader-header", type="number", step="any", debounce=True,
+                                        placeholder="auto; 0 = none", className="number-input")],
+                             className="field", title="line number of the header row (as numbered above); "
+                                                      "0 when the file has no header")], className="field-row"),
+        dcc.Checklist(id="tracks-reader-skip", value=[], className="check",
+                      options=[{"label": " skip lines that do not fit the header", "value": "skip"}]),
+        html.Button("read again", id="tracks-reader-apply", n_clicks=0, className="small"),
+        dcc.Store(id="tracks-reader-file"),
+    ], id="tracks-reader", className="reader", style={"display": "none"})
+
+
 def tracks_panel() -> html.Section:
     """The controls: upload, demo tracks, examples, the list of tracks and the column mapping."""
     limit = MAX_BYTES / 1024 / 1024
@@ -80,6 +102,7 @@ def tracks_panel() -> html.Section:
         html.P(f"CSV, TSV, semicolon or whitespace separated, gzip too; a header row; up to {limit:g} MB. "
                "The data stay in this browser.", className="hint"),
         html.Div(id="tracks-upload-message", className="message", role="alert", **{"aria-live": "polite"}),
+        reader_panel(),
         html.Div([html.Button("Load demo tracks", id="tracks-demo", n_clicks=0, className="small",
                               title="central lines of 0.3, 1, 3, 15 M☉ and a 1 M☉ profile (n = 3 polytropes), "
                                     "computed here: illustrative")], className="button-row"),
@@ -105,9 +128,40 @@ def tracks_panel() -> html.Section:
             _scale("track-T-log", "temperature is"),
             _dropdown("track-age-col", "age or model number", "the track's parameter"),
             _dropdown("track-label-col", "label column"),
+            html.Div("The track's own composition (mass fractions per row; any two of X, Y, Z give the "
+                     "third). Without one, every row has the panel's composition.", className="hint"),
+            html.Div([_dropdown("track-X-col", "X column", "hydrogen mass fraction per row"),
+                      _dropdown("track-Y-col", "Y column", "helium mass fraction per row"),
+                      _dropdown("track-Z-col", "Z column", "metal mass fraction per row")], className="field-row"),
+            html.Label([html.Span("nuclide columns", className="field-label"),
+                        dcc.Dropdown(id="track-nuclide-cols", multi=True, className="dropdown",
+                                     placeholder="columns named like H-1, He-4, C-12")],
+                       className="field", title="mass fraction of each nuclide per row (used when no X, Y, Z "
+                                                "column is chosen)"),
             html.Div(id="tracks-mapping-message", className="message", role="alert", **{"aria-live": "polite"}),
         ], id="tracks-mapping", className="tracks-mapping"),
     ], className="panel", id="panel-tracks")
+
+
+#: Rows shown in the track preview grid (the CSV download has them all).
+PREVIEW_ROWS = 200
+# numbers in the grids: 6 significant digits, no long strings of zeros (1.21382e+16, not 12138200000000000)
+_NUM = {"function": "params.value == null ? '' : (Math.abs(params.value) >= 1e6 || "
+                    "(Math.abs(params.value) < 1e-3 && params.value !== 0) ? "
+                    "Number(params.value).toExponential(5).replace(/\\.?0+e/, 'e') : "
+                    "String(Number(Number(params.value).toPrecision(6))))"}
+
+
+def _grid(id_, columns, what: str, height: str = "260px"):
+    """A sortable AG Grid with a button that saves what it shows as CSV."""
+    return html.Div([
+        html.Div(html.Button(f"{what} as CSV", id=f"{id_}-csv", n_clicks=0, className="small"),
+                 className="button-row grid-bar"),
+        dag.AgGrid(id=id_, columnDefs=columns, rowData=[], className="grid",
+                   defaultColDef={"sortable": True, "resizable": True, "filter": False, "minWidth": 90, "flex": 1},
+                   dashGridOptions={"theme": "themeBalham", "suppressCellFocus": True},
+                   csvExportParams={"fileName": f"thermoplane-{id_}.csv"}, style={"height": height}),
+    ])
 
 
 def tracks_results() -> html.Section:
@@ -119,14 +173,22 @@ def tracks_results() -> html.Section:
                                     "added to every row"),
                   dcc.Download(id="tracks-download")], className="point-bar"),
         html.Div(id="tracks-info", className="hint"),
-        dash_table.DataTable(id="tracks-crossings", data=[], page_size=12, sort_action="native",
-                             columns=[{"name": "boundary", "id": "label"}, {"name": "between rows", "id": "rows"},
-                                      {"name": "log ρ", "id": "log_rho", "type": "numeric"},
-                                      {"name": "log T", "id": "log_T", "type": "numeric"},
-                                      {"name": "parameter", "id": "age", "type": "numeric"}],
-                             style_cell={"fontFamily": "inherit", "fontSize": "0.9rem", "padding": "3px 8px",
-                                         "textAlign": "left"},
-                             style_header={"fontWeight": "600"}),
+        _grid("tracks-crossings", [
+            {"headerName": "boundary", "field": "label", "minWidth": 220, "flex": 2},
+            {"headerName": "between rows", "field": "rows", "minWidth": 110},
+            {"headerName": "log ρ", "field": "log_rho", "type": "numericColumn", "valueFormatter": _NUM},
+            {"headerName": "log T", "field": "log_T", "type": "numericColumn", "valueFormatter": _NUM},
+            {"headerName": "parameter", "field": "age", "type": "numericColumn", "valueFormatter": _NUM},
+            {"headerName": "composition used", "field": "composition", "minWidth": 260, "flex": 2}],
+            "crossings", height="260px"),
+        html.Div([html.Label([html.Span("pin a row", className="field-label"),
+                              dcc.Input(id="tracks-pin-row", type="number", step="any", debounce=True,
+                                        placeholder="row", className="number-input")], className="field",
+                             title="a row of the selected track (click a point of a track on the map to fill it)"),
+                  html.Button("map at this row's composition", id="tracks-pin-apply", n_clicks=0, className="small",
+                              title="set the panel's X, Y, Z to the pinned row's own composition, so the lines "
+                                    "on the map are drawn for it")], className="field-row pin-row"),
+        html.Div(id="tracks-pin-message", className="note", role="status"),
         html.Div([html.Label([html.Span("along the track", className="field-label"),
                               dcc.Dropdown(id="tracks-quantity", value="beta", clearable=False, className="dropdown",
                                            options=[{"label": v[0], "value": k} for k, v in QUANTITIES.items()])],
@@ -138,6 +200,8 @@ def tracks_results() -> html.Section:
                  className="field-row"),
         dcc.Graph(id="tracks-quantity-graph", config={"displaylogo": False}, style={"height": "300px"},
                   figure=figures.empty_figure("Upload a track or load the demo tracks")),
+        html.Details([html.Summary(f"table preview (first {PREVIEW_ROWS} rows with the computed columns)"),
+                      _grid("tracks-preview", [], "track preview", height="300px")], id="tracks-preview-box"),
     ], className="panel", id="panel-track-results")
 
 
@@ -145,12 +209,7 @@ def tracks_results() -> html.Section:
 # store updates: plain functions
 # ----------------------------------------------------------------------------
 def _tracks(store) -> list[dict]:
-    """The tracks in a browser store; anything that is not a well-formed track is ignored."""
-    tracks = store.get("tracks") if isinstance(store, dict) else None
-    if not isinstance(tracks, list):
-        return []
-    return [t for t in tracks if isinstance(t, dict) and isinstance(t.get("id"), str)
-            and isinstance(t.get("colour"), str) and isinstance(t.get("name", ""), str)]
+    return stored_tracks(store)
 
 
 def _find(store, tid):
@@ -217,11 +276,16 @@ def _add(store, track: dict) -> dict:
     return {"tracks": tracks, "selected": track["id"]}
 
 
-def add_files(store, contents, filenames, comp, opts: dict, max_bytes: int = MAX_BYTES) -> tuple[dict, str]:
+def add_files(store, contents, filenames, comp, opts: dict, max_bytes: int = MAX_BYTES, *, ignition=(),
+              read_options=None, failures=None) -> tuple[dict, str]:
     """Read each uploaded file, evaluate it once, add it to the store.
 
     Returns (new store, message). A broken file gives a line of the message
-    (naming the file) and leaves the other tracks as they were.
+    (naming the file) and leaves the other tracks as they were. ``read_options``
+    (delimiter, header_line, skip_ragged) are the user's choices from the
+    reader panel; a file that is text but does not split into a table is
+    appended to ``failures`` (a list, when given) as ``{"name", "lines",
+    "message"}`` so the reader panel can show its first lines.
     """
     if isinstance(contents, str):
         contents, filenames = [contents], [filenames]
@@ -235,13 +299,22 @@ def add_files(store, contents, filenames, comp, opts: dict, max_bytes: int = MAX
             continue
         try:
             data = _decode_upload(content, name, max_bytes)
-            df, mapping = tk.read_upload(data, name, max_bytes=max_bytes)
+            try:
+                df, mapping = tk.read_upload(data, name, max_bytes=max_bytes, **(read_options or {}))
+            except LayoutError as err:
+                if failures is not None:
+                    failures.append({"name": name, "lines": preview_lines(data), "message": str(err)})
+                raise
             guessed = mapping.rho_col is None or mapping.T_col is None
             if guessed:
                 _guess_columns(df, mapping, name)
             stem = name.rsplit("/", 1)[-1]
             track = tk.to_store(df, mapping, comp, name=stem, filename=stem, colour=_next_colour(store["tracks"]),
-                                notes=mapping.ambiguous, **opts)
+                                notes=mapping.ambiguous, ignition=ignition, **opts)
+            skipped = df.attrs.get("skipped_lines") or []
+            if skipped:
+                messages.append(f"'{name}': {len(skipped)} line(s) that do not fit the header were skipped, "
+                                f"e.g. line {skipped[0]}")
             size = len(json.dumps(track)) + sum(len(json.dumps(t)) for t in store["tracks"])
             if size > MAX_STORE_CHARS:
                 raise TableError(f"'{name}' does not fit in this browser's storage next to the "
@@ -251,7 +324,8 @@ def add_files(store, contents, filenames, comp, opts: dict, max_bytes: int = MAX
                 track["visible"] = False
                 messages.append(f"'{name}': " + "; ".join(mapping.ambiguous)
                                 + f"; for now {mapping.rho_col!r} is taken as density and {mapping.T_col!r} as "
-                                "temperature: choose the columns under “columns of” (the track is hidden until then)")
+                                "temperature: choose its density and temperature columns below “selected track” in the Tracks "
+                                "panel (the track is hidden until then)")
             store = _add(store, track)
             if track["report"]["bad_rows"]:
                 messages.append(f"'{name}': {track['report']['bad_rows']} bad row(s) left out, e.g. "
@@ -340,39 +414,84 @@ def mapping_controls(track) -> dict:
     if track is None:
         empty = []
         return {"rho_options": empty, "T_options": empty, "age_options": empty, "label_options": empty,
+                "X_options": empty, "Y_options": empty, "Z_options": empty, "nuclide_options": empty,
                 "rho_col": None, "T_col": None, "rho_log": True, "T_log": True, "units": "cgs",
-                "age_col": None, "label_col": None}
+                "age_col": None, "label_col": None, "X_col": _NONE, "Y_col": _NONE, "Z_col": _NONE,
+                "nuclide_cols": []}
     kept = track["kept"]
     numeric = [c for c in kept if c in track["numeric"]]
     m = track["mapping"]
     cols = [{"label": c, "value": c} for c in numeric]
+    none = [{"label": "none", "value": _NONE}]
+    nuclides = [{"label": f"{c} ({nuclide_of(c)})", "value": c} for c in numeric if nuclide_of(c)]
     return {"rho_options": cols, "T_options": cols,
             "age_options": [{"label": "row number", "value": _ROW}] + cols,
-            "label_options": [{"label": "none", "value": _NONE}] + [{"label": c, "value": c} for c in kept],
+            "label_options": none + [{"label": c, "value": c} for c in kept],
+            "X_options": none + cols, "Y_options": none + cols, "Z_options": none + cols,
+            "nuclide_options": nuclides,
             "rho_col": m["rho_col"], "T_col": m["T_col"], "rho_log": bool(m["rho_log"]), "T_log": bool(m["T_log"]),
-            "units": m["units"], "age_col": m["age_col"] or _ROW, "label_col": m["label_col"] or _NONE}
+            "units": m["units"], "age_col": m["age_col"] or _ROW, "label_col": m["label_col"] or _NONE,
+            "X_col": m.get("X_col") or _NONE, "Y_col": m.get("Y_col") or _NONE, "Z_col": m.get("Z_col") or _NONE,
+            "nuclide_cols": list((m.get("nuclide_cols") or {}).values())}
+
+
+def _none(v):
+    return None if v in (None, _NONE, _ROW, "") else v
 
 
 def _changes_from_controls(c: dict) -> dict:
+    nuclides = {}
+    for col in c.get("nuclide_cols") or []:
+        nuc = nuclide_of(col)
+        if nuc is not None:
+            nuclides[nuc] = col
     return {"rho_col": c["rho_col"], "T_col": c["T_col"], "rho_log": bool(c["rho_log"]), "T_log": bool(c["T_log"]),
-            "units": c["units"], "age_col": None if c["age_col"] in (None, _ROW) else c["age_col"],
-            "label_col": None if c["label_col"] in (None, _NONE) else c["label_col"]}
+            "units": c["units"], "age_col": _none(c["age_col"]), "label_col": _none(c["label_col"]),
+            "X_col": _none(c.get("X_col")), "Y_col": _none(c.get("Y_col")), "Z_col": _none(c.get("Z_col")),
+            "nuclide_cols": nuclides}
 
 
-def comp_and_options(view_data):
-    """Composition and physics options of the checked view the map stored (defaults when none)."""
-    from .map import parse_view, view_from_store
-    try:
-        comp, opts, _ = parse_view(view_from_store(view_data))
-    except ValueError:
-        comp, opts, _ = parse_view(view_from_store(None))
-    return comp, opts
+_MAPPING_KEYS = ("rho_col", "T_col", "rho_log", "T_log", "units", "age_col", "label_col", "X_col", "Y_col",
+                 "Z_col", "nuclide_cols")
 
 
-_MAPPING_KEYS = ("rho_col", "T_col", "rho_log", "T_log", "units", "age_col", "label_col")
+_HIDDEN = {"display": "none"}
 
 
-def tracks_callback(triggered, store, selected, controls: dict, contents, filenames, view_data) -> dict:
+def _reader_options(reader: dict) -> dict:
+    """The reader panel's choices as read_table keywords; ValueError with a message for a bad header line."""
+    header = reader.get("header")
+    if header in (None, ""):
+        header_line = None
+    else:
+        try:
+            x = float(header)
+        except (TypeError, ValueError):
+            raise ValueError(f"header line {header!r} is not a number; give a line number, or 0 for no header") \
+                from None
+        if not (x >= 0 and x == int(x)) or x > 1e9:
+            raise ValueError(f"header line {header!r} must be a whole number >= 0 (0: the file has no header)")
+        header_line = int(x)
+    delim = reader.get("delimiter") or "auto"
+    return {"delimiter": delim if delim in DELIMITERS else "auto", "header_line": header_line,
+            "skip_ragged": "skip" in (reader.get("skip") or [])}
+
+
+def _show_reader(out: dict, failure: dict | None) -> None:
+    if failure is None:
+        out.update(reader_style=_HIDDEN, reader_file=None)
+        return
+    width = len(str(len(failure["lines"])))
+    out.update(reader_style={"display": "block"}, reader_file=failure["name"],
+               reader_title=f"'{failure['name']}' could not be read as a table. Its first lines (numbered) are "
+                            "below: choose the delimiter, the header line, or skip lines that do not fit, "
+                            "then “read again”.",
+               reader_lines="\n".join(f"{i:>{width}}  {line}" for i, line in enumerate(failure["lines"], start=1))
+               or "(no text to show)")
+
+
+def tracks_callback(triggered, store, selected, controls: dict, contents, filenames, view_data,
+                    pending=None, reader=None) -> dict:
     """Callback body for everything that writes the store.
 
     Parameters
@@ -389,16 +508,26 @@ def tracks_callback(triggered, store, selected, controls: dict, contents, filena
         From the dcc.Upload.
     view_data
         The map's checked view (for the composition and options).
+    pending : dict, optional
+        ``{"contents": [...], "filename": [...]}`` to read again with the reader panel's choices;
+        default: the upload's own ``contents`` and ``filenames`` (kept in the browser while the
+        reader is shown).
+    reader : dict, optional
+        ``delimiter``, ``header``, ``skip`` of the reader panel and ``file``, the name it shows.
 
     Returns
     -------
     dict
         ``store`` (or no_update), ``upload_message``, ``mapping_message``,
         ``list``, ``select_options``, ``selected`` and every mapping control
-        (options and values), ``contents`` (None: the same file can be sent again).
+        (options and values), ``contents`` (None: the same file can be sent again),
+        and the reader panel (``reader_style``, ``reader_title``, ``reader_lines``,
+        ``reader_file``; no_update when untouched).
     """
     out = {"store": no_update, "upload_message": no_update, "mapping_message": no_update,
-           "contents": no_update}
+           "contents": no_update, "reader_style": no_update, "reader_title": no_update,
+           "reader_lines": no_update, "reader_file": no_update}
+    reader = reader if isinstance(reader, dict) else {}
     old = store if isinstance(store, dict) else {"tracks": [], "selected": None}
     if not isinstance(old.get("selected"), (str, type(None))):
         old = {**old, "selected": None}
@@ -417,9 +546,38 @@ def tracks_callback(triggered, store, selected, controls: dict, contents, filena
         kind = tid.get("type") if isinstance(tid, dict) else tid
         index = tid.get("index") if isinstance(tid, dict) else None
         if kind == "tracks-upload" and contents:
-            new, msg = add_files(new, contents, filenames, *co())
+            failures: list = []
+            new, msg = add_files(new, contents, filenames, *co(), ignition=ignition_from_store(view_data),
+                                 failures=failures)
             out["upload_message"] = msg
-            out["contents"] = None
+            # a file for the reader stays in the upload (the browser), to be read again; else clear it
+            # so that the same file can be sent again
+            out["contents"] = no_update if failures else None
+            _show_reader(out, failures[0] if failures else None)
+        elif kind == "tracks-reader-apply" and value:
+            name = reader.get("file")
+            files = pending if isinstance(pending, dict) else {"contents": contents, "filename": filenames}
+            names = files.get("filename") or []
+            names = [names] if isinstance(names, str) else list(names)
+            datas = files.get("contents") or []
+            datas = [datas] if isinstance(datas, str) else list(datas)
+            if name not in names or len(datas) != len(names):
+                out["upload_message"] = "The file to read again is no longer here; upload it again."
+                _show_reader(out, None)
+                continue
+            try:
+                options = _reader_options(reader)
+            except ValueError as err:
+                out["upload_message"] = str(err)
+                continue
+            failures = []
+            i = names.index(name)
+            new, msg = add_files(new, [datas[i]], [name], *co(), ignition=ignition_from_store(view_data),
+                                 read_options=options, failures=failures)
+            out["upload_message"] = msg
+            _show_reader(out, failures[0] if failures else None)
+            if not failures:
+                out["contents"] = None
         elif kind == "tracks-demo" and value:
             new = add_demo(new, *co())
             out["upload_message"] = ""
@@ -451,66 +609,45 @@ def tracks_callback(triggered, store, selected, controls: dict, contents, filena
 # ----------------------------------------------------------------------------
 # reading the store: map overlay, results, download
 # ----------------------------------------------------------------------------
-def _positions(rows: np.ndarray, table_rows) -> np.ndarray:
-    pos = np.searchsorted(rows, np.asarray(table_rows, dtype=np.int64))
-    return np.clip(pos, 0, max(len(rows) - 1, 0))
-
-
-def _drawable(track, comp, opts):
-    ev = tk.evaluate_stored(track, comp, **opts)
-    data, rows, enriched = ev["data"], ev["rows"], ev["enriched"]
-    keep = np.concatenate([[c["row"], c["row_after"]] for c in ev["crossings"]]) if ev["crossings"] else []
-    idx = tk.draw_indices(len(rows), _positions(rows, keep) if len(keep) else [])
-    regime_col = [c for c in enriched.columns if c.startswith("regime")][-1]
-    beta_col = "beta" if "beta" in enriched.columns and enriched["beta"].dtype.kind == "f" else "beta_computed"
-    eta_col = "eta" if "eta" in enriched.columns and enriched["eta"].dtype.kind == "f" else "eta_computed"
-    ok = data.valid[idx]
-    age = data.age[idx] if data.age is not None else None
-    return {"x": np.where(ok, data.log_rho[idx], np.nan), "y": np.where(ok, data.log_T[idx], np.nan),
-            "row": rows[idx], "age": age,
-            "regime": [_REGIME_LABEL.get(r, r) for r in enriched[regime_col].to_numpy()[idx]],
-            "beta": enriched[beta_col].to_numpy()[idx], "eta": enriched[eta_col].to_numpy()[idx],
-            "crossings": ev["crossings"], "age_name": track["mapping"].get("age_col")}
-
-
-def overlay_traces(store, comp, opts: dict, colour_by=()) -> list:
-    """Plotly traces of every visible track for the map (drawn downsampled, at most 20k points each).
-
-    A track that cannot be evaluated is left out (the tracks panel says why).
-    """
-    traces = []
-    visible = [t for t in _tracks(store) if t.get("visible")]
-    selected = (store or {}).get("selected")
-    for track in visible:
-        try:
-            d = _drawable(track, comp, opts)
-        except (TableError, ValueError):
-            continue
-        except Exception:
-            log.exception("drawing track %r failed", track.get("name"))
-            continue
-        traces += figures.track_traces(track["id"], track["name"], track["colour"], d,
-                                       colour_by="age" in (colour_by or ()) and track["id"] == selected)
-    return traces
-
-
 def _crossing_rows(records, age_name) -> list[dict]:
     return [{"label": r["label"], "rows": f"{r['row']}–{r['row_after']}", "log_rho": round(r["log_rho"], 4),
-             "log_T": round(r["log_T"], 4), "age": None if r["age"] is None else float(f"{r['age']:.6g}")}
+             "log_T": round(r["log_T"], 4), "age": None if r["age"] is None else float(f"{r['age']:.6g}"),
+             "composition": tk.composition_text(r)}
             for r in records]
 
 
+def _preview(ev) -> tuple[list, list]:
+    """(columnDefs, rowData) of the first PREVIEW_ROWS kept rows with the computed columns."""
+    e = ev["enriched"].iloc[:PREVIEW_ROWS]
+    cols = [{"headerName": "row", "field": "__row", "type": "numericColumn", "maxWidth": 90}]
+    rows = {"__row": ev["rows"][:len(e)].tolist()}
+    for i, c in enumerate(e.columns):
+        field = f"c{i}"
+        if e[c].dtype.kind == "f":
+            v = e[c].to_numpy()
+            rows[field] = [float(x) if np.isfinite(x) else None for x in v]
+            cols.append({"headerName": str(c), "field": field, "type": "numericColumn", "valueFormatter": _NUM})
+        else:
+            rows[field] = [str(x) for x in e[c].to_numpy()]
+            cols.append({"headerName": str(c), "field": field})
+    n = len(e)
+    return cols, [{k: rows[k][j] for k in rows} for j in range(n)]
+
+
 def results(store, selected, view_data, quantity: str, xaxis: str):
-    """(info children, crossings rows, figure of the quantity along the visible tracks)."""
+    """(info children, crossings rows, figure of the quantity along the visible tracks,
+    preview columnDefs, preview rows)."""
     tracks = _tracks(store)
     if not tracks:
         return ("No track yet: upload a table or load the demo tracks.", [],
-                figures.empty_figure("Upload a track or load the demo tracks"))
+                figures.empty_figure("Upload a track or load the demo tracks"), [], [])
     comp, opts = comp_and_options(view_data)
+    ignition = ignition_from_store(view_data)
     track = _find(store, selected) or tracks[-1]
-    info, rows = [], []
+    info, rows, preview = [], [], ([], [])
     try:
-        ev = tk.evaluate_stored(track, comp, **opts)
+        ev = tk.evaluate_stored(track, comp, ignition=ignition, **opts)
+        preview = _preview(ev)
         kept = len(ev["rows"])
         where = "" if ev["exact"] else f" (found on the {kept:,} rows kept in the browser)"
         bad = int(np.count_nonzero(~ev["data"].valid))
@@ -521,6 +658,9 @@ def results(store, selected, view_data, quantity: str, xaxis: str):
         if track.get("label"):
             info.append(html.Span(" " + track["label"] + ".", className="strong"))
         rows = _crossing_rows(ev["crossings"], age)
+        if any(r.get("composition") == "track" for r in ev["crossings"]):
+            info.append(html.Span(" Crossings use the track's own composition, row by row; the lines on the map "
+                                  "are drawn for the panel's: pin a row below to draw them for that row's."))
     except (TableError, ValueError) as err:
         info.append(html.Span(f"{track['name']}: {err}"))
     # one x axis: the selected track, and the visible tracks whose parameter is the same column
@@ -531,7 +671,7 @@ def results(store, selected, view_data, quantity: str, xaxis: str):
                                                                  or t["mapping"].get("age_col") == param)):
             continue
         try:
-            ev = tk.evaluate_stored(t, comp, **opts)
+            ev = tk.evaluate_stored(t, comp, ignition=ignition, **opts)
         except (TableError, ValueError):
             continue
         e = ev["enriched"]
@@ -545,7 +685,7 @@ def results(store, selected, view_data, quantity: str, xaxis: str):
     label, log_y = QUANTITIES.get(quantity, (quantity, False))
     x_label = (param or "row") if xaxis == "age" else "row"
     fig = figures.track_quantity_figure(series, y_label=label, x_label=x_label, log_y=log_y)
-    return info, rows, fig
+    return info, rows, fig, preview[0], preview[1]
 
 
 def download(n, store, selected, view_data):
@@ -557,7 +697,7 @@ def download(n, store, selected, view_data):
         return no_update, "No track to download: upload a table first."
     try:
         comp, opts = comp_and_options(view_data)
-        ev = tk.evaluate_stored(track, comp, **opts)
+        ev = tk.evaluate_stored(track, comp, ignition=ignition_from_store(view_data), **opts)
         comment = ""
         if len(ev["rows"]) < track["n_rows"] or len(track["kept"]) < len(track["columns"]):
             comment = (f"Thermoplane: {len(ev['rows'])} of {track['n_rows']} rows and "
@@ -581,9 +721,11 @@ def download(n, store, selected, view_data):
 # ----------------------------------------------------------------------------
 _CONTROL_IDS = {"rho_col": "track-rho-col", "T_col": "track-T-col", "rho_log": "track-rho-log",
                 "T_log": "track-T-log", "units": "track-units", "age_col": "track-age-col",
-                "label_col": "track-label-col"}
+                "label_col": "track-label-col", "X_col": "track-X-col", "Y_col": "track-Y-col",
+                "Z_col": "track-Z-col", "nuclide_cols": "track-nuclide-cols"}
 _OPTION_IDS = {"rho_options": "track-rho-col", "T_options": "track-T-col", "age_options": "track-age-col",
-               "label_options": "track-label-col"}
+               "label_options": "track-label-col", "X_options": "track-X-col", "Y_options": "track-Y-col",
+               "Z_options": "track-Z-col", "nuclide_options": "track-nuclide-cols"}
 
 
 def register(app) -> None:
@@ -595,8 +737,16 @@ def register(app) -> None:
                "select_options": Output("tracks-select", "options"),
                "selected": Output("tracks-select", "value"),
                **{k: Output(cid, "options") for k, cid in _OPTION_IDS.items()},
-               **{k: Output(cid, "value") for k, cid in _CONTROL_IDS.items()}}
+               **{k: Output(cid, "value") for k, cid in _CONTROL_IDS.items()},
+               "reader_style": Output("tracks-reader", "style"),
+               "reader_title": Output("tracks-reader-title", "children"),
+               "reader_lines": Output("tracks-reader-lines", "children"),
+               "reader_file": Output("tracks-reader-file", "data")}
     inputs = {"contents": Input("tracks-upload", "contents"), "demo": Input("tracks-demo", "n_clicks"),
+              "reader_apply": Input("tracks-reader-apply", "n_clicks"),
+              "reader_delim": State("tracks-reader-delim", "value"),
+              "reader_header": State("tracks-reader-header", "value"),
+              "reader_skip": State("tracks-reader-skip", "value"), "reader_file": State("tracks-reader-file", "data"),
               "remove": Input({"type": "track-remove", "index": ALL}, "n_clicks"),
               "visible": Input({"type": "track-visible", "index": ALL}, "value"),
               "names": Input({"type": "track-name", "index": ALL}, "value"),
@@ -611,7 +761,8 @@ def register(app) -> None:
                (Output("tracks-upload", "className"), "upload busy", "upload")]
 
     @app.callback(output=outputs, inputs=inputs, running=running)
-    def _on_tracks(contents, demo, remove, visible, names, selected, filenames, store, view, **controls):
+    def _on_tracks(contents, demo, remove, visible, names, selected, filenames, store, view, reader_apply,
+                   reader_delim, reader_header, reader_skip, reader_file, **controls):
         triggered = []
         for t in ctx.triggered:
             prop_id = t.get("prop_id") or "."
@@ -620,15 +771,32 @@ def register(app) -> None:
             cid, prop = prop_id.rsplit(".", 1)
             triggered.append((json.loads(cid) if cid.startswith("{") else cid, prop, t.get("value")))
         try:
-            return tracks_callback(triggered, store, selected, controls, contents, filenames, view)
+            return tracks_callback(triggered, store, selected, controls, contents, filenames, view, None,
+                                   {"delimiter": reader_delim, "header": reader_header, "skip": reader_skip,
+                                    "file": reader_file})
         except Exception:
             log.exception("tracks callback failed")
             out = {k: no_update for k in outputs}
             out["upload_message"] = GENERIC_ERROR
             return out
 
-    app.callback(Output("tracks-info", "children"), Output("tracks-crossings", "data"),
-                 Output("tracks-quantity-graph", "figure"),
+    # clicking a point of a track on the map selects the track and pins that row
+    app.clientside_callback(
+        "function(c){ return window.dash_clientside.thermoplane.pinTrackRow(c); }",
+        Output("tracks-pin-row", "value"), Output("tracks-select", "value", allow_duplicate=True),
+        Input("plane-graph", "clickData"), prevent_initial_call=True)
+    for grid in ("tracks-crossings", "tracks-preview"):
+        app.clientside_callback("function(n){ return n > 0; }", Output(grid, "exportDataAsCsv"),
+                                Input(f"{grid}-csv", "n_clicks"), prevent_initial_call=True)
+    app.callback(Output("comp-X", "value", allow_duplicate=True), Output("comp-Y", "value", allow_duplicate=True),
+                 Output("comp-Z", "value", allow_duplicate=True), Output("comp-mix-on", "value", allow_duplicate=True),
+                 Output("tracks-pin-message", "children"),
+                 Input("tracks-pin-apply", "n_clicks"), State("tracks-pin-row", "value"),
+                 State("tracks-store", "data"), State("tracks-select", "value"), State("view-store", "data"),
+                 prevent_initial_call=True)(_safe_pin)
+    app.callback(Output("tracks-info", "children"), Output("tracks-crossings", "rowData"),
+                 Output("tracks-quantity-graph", "figure"), Output("tracks-preview", "columnDefs"),
+                 Output("tracks-preview", "rowData"),
                  Input("tracks-store", "data"), Input("tracks-select", "value"), Input("view-store", "data"),
                  Input("tracks-quantity", "value"), Input("tracks-xaxis", "value"))(_safe_results)
     app.callback(Output("tracks-download", "data"), Output("tracks-mapping-message", "children",
@@ -643,4 +811,55 @@ def _safe_results(store, selected, view_data, quantity, xaxis):
         return results(store, selected, view_data, quantity, xaxis)
     except Exception:
         log.exception("track results failed")
-        return GENERIC_ERROR, [], figures.empty_figure("")
+        return GENERIC_ERROR, [], figures.empty_figure(""), [], []
+
+
+def pin_composition(n, row, store, selected, view_data):
+    """Callback body: the pinned row's own composition for the panel: (X, Y, Z, mix_on, message).
+
+    The map is then drawn for that composition (the lines and the shading), so a crossing marker
+    found with the row's composition sits on the drawn line.
+    """
+    skip = (no_update,) * 4
+    if not n:
+        return (*skip, "")
+    track = _find(store, selected) or (_tracks(store)[-1] if _tracks(store) else None)
+    if track is None:
+        return (*skip, "No track to pin a row of: upload a table first.")
+    if row in (None, ""):
+        return (*skip, "Give a row number (or click a point of the track on the map).")
+    try:
+        r = float(row)
+    except (TypeError, ValueError):
+        return (*skip, f"row {row!r} is not a number")
+    if not (r == int(r) and 0 <= r < track.get("n_rows", 0)):
+        return (*skip, f"row {row} is outside this track: rows are 0 to {track.get('n_rows', 0) - 1}")
+    comp, opts = comp_and_options(view_data)
+    ev = tk.evaluate_stored(track, comp, **opts)
+    data = ev["data"]
+    if data.X is None or data.Y is None:
+        return (*skip, f"{track['name']} has no composition of its own: choose its X, Y, Z or nuclide columns "
+                       "in the Tracks panel first")
+    rows = ev["rows"]
+    pos = int(np.clip(np.searchsorted(rows, int(r)), 0, len(rows) - 1))
+    if rows[pos] != int(r) and pos > 0 and abs(rows[pos - 1] - r) < abs(rows[pos] - r):
+        pos -= 1
+    X, Y = float(data.X[pos]), float(data.Y[pos])
+    if not (np.isfinite(X) and np.isfinite(Y)) or X < 0 or Y < 0 or X + Y > 1 + 1e-6:
+        return (*skip, f"row {int(rows[pos])} has no usable composition (X = {X:g}, Y = {Y:g})")
+    X, Y = round(X, 4), round(Y, 4)
+    Z = round(max(0.0, 1.0 - X - Y), 4)
+    note = "" if rows[pos] == int(r) else f" (row {int(r)} is not kept in the browser: nearest kept row)"
+    metals = " Metals keep the panel's mixture." if data.metals else ""
+    return X, Y, Z, [], (f"The map now uses row {int(rows[pos])}{note} of {track['name']}: X = {X:g}, "
+                         f"Y = {Y:g}, Z = {Z:g}.{metals}")
+
+
+def _safe_pin(n, row, store, selected, view_data):
+    try:
+        return pin_composition(n, row, store, selected, view_data)
+    except (TableError, ValueError) as err:
+        return no_update, no_update, no_update, no_update, str(err)
+    except Exception:
+        log.exception("pinning a track row failed")
+        return no_update, no_update, no_update, no_update, GENERIC_ERROR

@@ -128,13 +128,66 @@ def test_a_composition_change_costs_one_plane_evaluation():
     assert plane.evaluation_count() == before + 1
 
 
-def test_diverging_scale_is_centred_where_the_quantity_has_a_centre():
+def _middle_at(h) -> float:
+    """Where the diverging scale's middle colour sits, as a value of the colour axis."""
+    scale = [tuple(c) for c in h.colorscale]
+    middle = scale[len(scale) // 2]
+    return h.zmin + middle[0] * (h.zmax - h.zmin)
+
+
+def test_eta_on_a_signed_log_scale_centred_on_zero_with_clipped_ends():
     fig = map_cb.update_map(**controls(quantity="eta", colorscale="auto"))["figure"]
     h = heatmap(fig)
-    centred = h.zmid == 0.0 or (h.zmin is not None and h.zmin == -h.zmax)   # symmetric range about 0
-    assert centred and h.colorscale[0][1] != ""
-    fig = map_cb.update_map(**controls(quantity="gamma1", colorscale="auto"))["figure"]
-    assert heatmap(fig).zmid is None
+    z = np.asarray(h.z, dtype=float)
+    # asinh scale: the drawn values are asinh(eta); eta runs to ~1e8 on the default plane (asinh ~ 19)
+    assert np.nanmax(z) < 25 and abs(_middle_at(h)) < 1e-9
+    assert h.zmin < 0 < h.zmax and h.zmax - h.zmin < 30
+    texts = list(h.colorbar.ticktext)
+    assert "0" in texts and texts[-1].startswith("≥ ") and "signed-log" in h.colorbar.title.text
+
+
+def test_gamma1_range_is_robust_to_a_spike_and_says_it_is_clipped():
+    full = dict(electrons="fermi", ionization="saha", coulomb=True, pairs=True)
+    fig = map_cb.update_map(**controls(quantity="gamma1", colorscale="auto", **full))["figure"]
+    h = heatmap(fig)
+    z = np.asarray(h.z, dtype=float)
+    assert h.zmid is None
+    lo, hi = np.nanpercentile(z, [1, 99])
+    assert h.zmin == pytest.approx(lo, rel=1e-5) and h.zmax == pytest.approx(hi, rel=1e-5)
+    assert "clipped" in h.colorbar.title.text and any(t.startswith(("≥", "≤")) for t in h.colorbar.ticktext)
+
+
+def test_burning_map_states_its_floor():
+    h = heatmap(map_cb.update_map(**controls(quantity="eps_pp"))["figure"])
+    assert "blank below 10^-30 erg/g/s" in h.colorbar.title.text
+
+
+def test_no_physical_value_is_grey_with_a_legend_entry():
+    out = map_cb.update_map(**controls(quantity="regime", ionization="full", coulomb=True))
+    fig = out["figure"]
+    (grey,) = [t for t in fig.data if t.meta == "unphysical"]
+    mask = np.isfinite(np.asarray(grey.z, dtype=float))
+    assert mask.any() and "P ≤ 0" in grey.hovertemplate
+    assert any(t.name == map_cb.UNPHYSICAL_LABEL and t.showlegend for t in fig.data)
+    # the default physics has a physical value everywhere: no grey region
+    assert not [t for t in map_cb.update_map(**controls())["figure"].data if t.meta == "unphysical"]
+
+
+def test_impact_maps_signed_log_percent_and_categories():
+    from thermoplane.physics import impact
+    names = [q.name for q in impact.impact_quantities()]
+    assert "impact_coulomb_P" in names and "impact_electrons_classical_gamma1" in names and names[-1] == "impact_which"
+    out = map_cb.update_map(**controls(quantity="impact_coulomb_P", resolution=60))
+    assert out["map-message"] == ""
+    h = heatmap(out["figure"])
+    assert "signed-log" in h.colorbar.title.text and "%" in h.colorbar.title.text
+    # the other fields of the same ingredient reuse the cached planes: no new evaluation
+    before = plane.evaluation_count()
+    map_cb.update_map(**controls(quantity="impact_coulomb_nabla_ad", resolution=60))
+    assert plane.evaluation_count() == before
+    fig = map_cb.update_map(**controls(quantity="impact_which", resolution=60))["figure"]
+    legend = {t.name for t in fig.data if t.showlegend}
+    assert {"Coulomb", "Fermi–Dirac vs classical electrons"} <= legend
 
 
 def test_payload_at_300_pixels_is_small():
@@ -205,7 +258,24 @@ def test_every_unit_has_an_si_conversion():
 
 def test_no_click_yet():
     heading, table, *_ = point.pin_point(None, "cgs", None)
-    assert table is None and "Click" in heading
+    assert table == [] and "Click" in heading
+
+
+def test_pinned_point_heading_follows_the_units():
+    click = {"points": [{"x": 2.0, "y": 6.0}]}
+    heading, *_ = point.pin_point(click, "si", store())
+    assert "ρ = 1e+05 kg m⁻³" in heading and "g cm⁻³;" in heading       # log rho stays in g cm^-3, said so
+    heading, *_ = point.pin_point(click, "cgs", store())
+    assert "ρ = 100 g cm⁻³" in heading
+
+
+def test_pinned_point_without_physical_value_is_warned():
+    click = {"points": [{"x": 4.0, "y": 3.5}]}
+    view = store(ionization="full", coulomb=True)
+    heading, rows, js, _, msg = point.pin_point(click, "cgs", view)
+    P = json.loads(js)["state"]["P"]
+    assert P < 0 and msg.startswith("No physical value here: P = ") and "not physical" in msg
+    assert point.pin_point(click, "cgs", store())[4] == ""
 
 
 # -- sharing ------------------------------------------------------------------------

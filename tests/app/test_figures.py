@@ -60,3 +60,45 @@ def test_presentation_mode_has_larger_type_and_thicker_lines():
 
 def test_graph_config_saves_images_at_three_times_screen_size():
     assert figures.graph_config()["toImageButtonOptions"]["scale"] == 3
+
+
+# -- issue 14: clutter -------------------------------------------------------------------
+def test_each_burning_process_has_its_own_line_style():
+    from thermoplane.physics.burning import PROCESSES
+    styles = {figures.LINE_STYLES[figures.ignition_style(p)] for p in PROCESSES}
+    assert len(styles) == len(PROCESSES)
+    assert len({c for c, _ in styles}) == len(PROCESSES) and len({d for _, d in styles}) == len(PROCESSES)
+
+
+def test_track_palette_is_never_a_line_colour():
+    from thermoplane.app import tracks as tk
+
+    def rgb(h):
+        h = h.lstrip("#")
+        return np.array([int(h[i:i + 2], 16) for i in (0, 2, 4)], float)
+
+    lines = [rgb(c) for c, _ in figures.LINE_STYLES.values()]
+    for colour in tk.TRACK_COLOURS:
+        # far from every line colour (Euclidean RGB distance; our threshold, no source)
+        assert min(np.linalg.norm(rgb(colour) - c) for c in lines) > 90, colour
+
+
+def test_labels_keep_clear_of_track_ends():
+    line = figures.Line("equality", "P_rad = P_gas", np.linspace(-10, 10, 201), np.linspace(3, 10, 201))
+    free = figures.place_labels([line], (-10, 10), (3, 10), 13)[0]
+    blocked = figures.place_labels([line], (-10, 10), (3, 10), 13, avoid=[free])[0]
+    assert blocked != free
+    assert abs(blocked[0] - free[0]) > 1.0              # moved along the line, off the end marker
+
+
+def test_presentation_mode_enlarges_tracks():
+    d = {"x": [1.0, 2.0], "y": [7.0, 7.5], "row": np.array([0, 1]), "age": None, "regime": ["a", "b"],
+         "beta": [0.9, 0.8], "eta": [-1.0, 0.5],
+         "crossings": [{"label": "electron degeneracy (η = 0)", "short": "η = 0", "row": 0, "row_after": 1,
+                        "log_rho": 1.5, "log_T": 7.2, "age": None, "X": 0.7, "Y": 0.28, "Z": 0.02,
+                        "composition": "track"}]}
+    small = figures.track_traces("t", "track", "#E6007E", d)
+    big = figures.track_traces("t", "track", "#E6007E", d, presentation=True)
+    assert big[1].line.width > 1.5 * small[1].line.width
+    assert big[-1].textfont.size > small[-1].textfont.size
+    assert list(small[-1].text) == ["η = 0"] and "track's own" in small[-1].customdata[0][3]

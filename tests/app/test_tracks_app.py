@@ -246,19 +246,25 @@ def test_upload_through_the_callback_clears_the_upload_for_the_next_file():
 def test_results_crossings_table_and_quantity_plot():
     store, _ = upload("example_central_track.csv")
     view = {"view": {**DEFAULT_VIEW, **FAST}}
-    info, rows, fig = ct.results(store, None, view, "beta", "age")
-    ev = tk.evaluate_stored(store["tracks"][0], COMP, **FAST)
+    info, rows, fig, cols, preview = ct.results(store, None, view, "beta", "age")
+    ignition = tuple((p, lv) for p in DEFAULT_VIEW["processes"] for lv in (1.0, 1e3))
+    ev = tk.evaluate_stored(store["tracks"][0], COMP, ignition=ignition, **FAST)
     assert len(rows) == len(ev["crossings"]) > 0
+    # the report holds the ignition crossings at the view's levels, and says which composition it used
+    assert any(r["label"] == "ε_pp = 10³ erg g⁻¹ s⁻¹" for r in rows)
+    assert all(r["composition"].endswith("(the panel's)") for r in rows)
+    # the preview grid: the first rows with the computed columns
+    assert len(preview) == min(60, ct.PREVIEW_ROWS) and "regime" in [c["headerName"] for c in cols]
     assert rows[0]["rows"] == f"{ev['crossings'][0]['row']}–{ev['crossings'][0]['row_after']}"
     assert len(fig.data) == 1 and fig.layout.yaxis.title.text.startswith("β")
     assert fig.layout.xaxis.title.text == "age_yr"
-    _, _, fig = ct.results(store, None, view, "P", "row")
+    _, _, fig, _, _ = ct.results(store, None, view, "P", "row")
     assert fig.layout.yaxis.type == "log" and fig.layout.xaxis.title.text == "row"
     # against the parameter, only tracks with the same parameter column share the axis
     both, _ = upload("example_profile.tsv", store=store)
-    _, _, fig = ct.results(both, store["tracks"][0]["id"], view, "beta", "age")
+    _, _, fig, _, _ = ct.results(both, store["tracks"][0]["id"], view, "beta", "age")
     assert [t.name for t in fig.data] == ["example_central_track.csv"]
-    _, _, fig = ct.results(both, store["tracks"][0]["id"], view, "beta", "row")
+    _, _, fig, _, _ = ct.results(both, store["tracks"][0]["id"], view, "beta", "row")
     assert len(fig.data) == 2
 
 
@@ -305,3 +311,67 @@ def test_browser_storage_limit_has_its_own_message(monkeypatch):
     store2, msg = ct.add_files(store, [example("example_profile.tsv")], ["example_profile.tsv"], COMP, FAST)
     assert [t["name"] for t in store2["tracks"]] == ["example_central_track.csv"]
     assert "example_profile.tsv" in msg and "storage" in msg and "remove a track" in msg
+
+
+# -- issue 14 ---------------------------------------------------------------------------
+def test_map_and_tracks_callbacks_do_not_import_each_other():
+    import ast
+    for name, other in (("map", "tracks"), ("tracks", "map")):
+        tree = ast.parse((ROOT / "app" / "callbacks" / f"{name}.py").read_text())
+        imported = set()
+        for node in ast.walk(tree):
+            if isinstance(node, ast.ImportFrom):
+                imported.add((node.level, node.module or ""))
+                imported.update((node.level, a.name) for a in node.names if node.module is None)
+        assert (1, other) not in imported and (1, "") not in {(lv, m) for lv, m in imported if m == other}
+        assert (2, "view") in imported                               # both read the view from one module
+    import importlib
+    view = importlib.import_module("thermoplane.app.view")
+    assert {"parse_view", "overlay_lines", "overlay_traces", "view_from_store"} <= set(view.__all__)
+
+
+def test_html_export_includes_the_tracks():
+    from thermoplane.app.callbacks import export
+    from thermoplane.app.callbacks import map as map_cb
+    store, _ = upload("example_central_track.csv")
+    view = map_cb.update_map(**{**view_to_controls({**DEFAULT_VIEW, **FAST, "resolution": 40})})["view"]
+    sent, msg = export.html_export(1, view, store, [])
+    assert msg == "" and "track:" + store["tracks"][0]["id"] in sent["content"]
+    sent, _ = export.html_export(1, view, None, [])
+    assert "track:" not in sent["content"]
+
+
+def test_two_column_file_message_names_controls_that_exist():
+    content = data_url(b"a,b\n1,7\n2,7.1\n")
+    store, msg = ct.add_files(None, [content], ["two.csv"], COMP, FAST)
+    assert "columns of" not in msg and "“selected track”" in msg and "Tracks panel" in msg
+
+
+def test_reader_reads_a_file_again_with_the_users_choices():
+    bad = b"written by my code, version 3\nlog_rho log_T\n1.0 7.0\n2.0 7.2 junk\n3.0 7.4\n"
+    content = data_url(bad, "text/plain")
+    triggered = [("tracks-upload", "contents", [content])]
+    controls = {k: None for k in ct._CONTROL_IDS}
+    out = ct.tracks_callback(triggered, None, None, controls, [content], ["odd.txt"], None)
+    assert out["reader_style"] == {"display": "block"} and out["reader_file"] == "odd.txt"
+    assert "2  log_rho log_T" in out["reader_lines"] and "could not be read" in out["reader_title"]
+    pending = {"contents": [content], "filename": ["odd.txt"]}
+    again = [("tracks-reader-apply", "n_clicks", 1)]
+    reader = {"delimiter": "whitespace", "header": 2, "skip": ["skip"], "file": "odd.txt"}
+    out = ct.tracks_callback(again, None, None, controls, None, None, None, pending, reader)
+    assert out["reader_style"] == {"display": "none"}
+    (track,) = out["store"]["tracks"]
+    assert track["n_rows"] == 2 and "skipped" in out["upload_message"]
+    out = ct.tracks_callback(again, None, None, controls, None, None, None, pending, {**reader, "header": -1})
+    assert "whole number" in out["upload_message"]
+
+
+def test_pinning_a_row_sets_the_panels_composition():
+    table = b"log_rho,log_T,X,Y\n1.0,7.0,0.7,0.28\n3.0,7.3,0.35,0.63\n5.0,7.6,0.0,0.98\n"
+    store, msg = ct.add_files(None, [data_url(table)], ["own.csv"], COMP, FAST)
+    tid = store["tracks"][0]["id"]
+    X, Y, Z, mix_on, text = ct.pin_composition(1, 1, store, tid, None)
+    assert (X, Y, Z, mix_on) == (0.35, 0.63, 0.02, []) and "row 1" in text
+    assert ct.pin_composition(1, 7, store, tid, None)[4].startswith("row 7 is outside")
+    plain, _ = upload("example_central_track.csv")
+    assert "no composition of its own" in ct.pin_composition(1, 0, plain, None, None)[4]

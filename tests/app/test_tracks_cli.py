@@ -54,11 +54,11 @@ def test_help_lists_track():
 def test_every_example_file_json_shape_and_csv(tmp_path, name, rows):
     out = tmp_path / "out.csv"
     data = track_json(EXAMPLES / name, *CLASSICAL, "-o", out)
-    assert set(data) == {"rows", "bad_rows", "crossings"}
+    assert set(data) == {"rows", "bad_rows", "composition_columns", "crossings"}
     assert data["rows"] == rows and data["bad_rows"] == []
     for c in data["crossings"]:
-        assert set(c) == {"boundary", "row", "log_rho", "log_T", "age"}
-        assert c["boundary"] in BOUNDARY_FIELDS or c["boundary"].startswith(("nu_ignition_", "capture_"))
+        assert set(c) == {"boundary", "label", "row", "log_rho", "log_T", "age", "X", "Y", "Z", "composition"}
+        assert c["boundary"] in BOUNDARY_FIELDS or c["boundary"].startswith(("ignition_", "nu_ignition_", "capture_"))
         assert 0 <= c["row"] < rows
         assert math.isfinite(c["log_rho"]) and math.isfinite(c["log_T"])
     table = read_csv(out)
@@ -165,3 +165,63 @@ def test_bad_files_one_line_exit_2(tmp_path, content, args, fragment):
 def test_missing_file_one_line_exit_2():
     r = run("track", "/nonexistent/track.csv")
     assert r.returncode == 2 and "No such file" in r.stderr and len(r.stderr.strip().splitlines()) == 1
+
+
+# -- issue 14: composition columns, ignition crossings, headers with units, decimal commas ------------
+UNITS_TABLE = """model   age    log10(rho/g cm^-3)   log10(T/K)   hydrogen   helium
+1 0 1.9 7.15 0.70 0.28
+2 1e9 2.5 7.2 0.50 0.48
+3 2e9 4.0 7.4 0.0 0.98
+4 3e9 5.5 7.7 0.0 0.98
+"""
+
+
+def test_track_composition_columns_and_which_composition_each_crossing_used(tmp_path):
+    path = tmp_path / "units.txt"
+    path.write_text(UNITS_TABLE)
+    data = track_json(path, *CLASSICAL)
+    assert data["composition_columns"]["X"] == "hydrogen" and data["composition_columns"]["Y"] == "helium"
+    deg = [c for c in data["crossings"] if c["boundary"] == "degeneracy"]
+    assert len(deg) == 1 and deg[0]["composition"] == "track"
+    assert 0.0 < deg[0]["X"] < 0.7 and deg[0]["X"] + deg[0]["Y"] + deg[0]["Z"] == pytest.approx(1.0)
+    # the crossing is where eta = 0 for that composition: classical electrons, eta = ln(n_e lambda^3 / 2)
+    comp = ph.Composition.from_xyz(deg[0]["X"], deg[0]["Y"], deg[0]["Z"])
+    s = ph.evaluate(10 ** deg[0]["log_rho"], 10 ** deg[0]["log_T"], comp, electrons="classical",
+                    ionization="full", coulomb=False, pairs=False)
+    assert abs(float(s.eta)) < 0.1
+    # --X-col '' --Y-col '' : the panel's composition for every row, and the report says so
+    data = track_json(path, *CLASSICAL, "--X-col", "", "--Y-col", "")
+    assert all(c["composition"] == "panel" for c in data["crossings"])
+    r = run("track", path, *CLASSICAL)
+    assert r.returncode == 0 and "the track's own, per row (columns hydrogen, helium)" in r.stdout
+    assert "(this track's own)" in r.stdout
+    r = run("track", path, "--X-col", "nope")
+    assert r.returncode == 2 and "'nope' is not in the table" in r.stderr and "Traceback" not in r.stderr
+
+
+def test_track_ignition_crossings_default_levels_and_eps_levels(tmp_path):
+    lT = [6.6 + 0.02 * i for i in range(60)]
+    path = tmp_path / "hot.csv"
+    path.write_text("log_rho,log_T\n" + "".join(f"2.0,{t:.3f}\n" for t in lT))
+    data = track_json(path, *CLASSICAL)
+    keys = {c["boundary"] for c in data["crossings"]}
+    assert {"ignition_pp_1", "ignition_pp_1000"} <= keys                 # the map's default levels
+    data = track_json(path, *CLASSICAL, "--eps-levels", "10", "--processes", "pp")
+    assert {c["boundary"] for c in data["crossings"] if c["boundary"].startswith("ignition")} == {"ignition_pp_10"}
+    (row,) = [c for c in data["crossings"] if c["boundary"] == "ignition_pp_10"]
+    # check: epsilon of the same fit at the reported crossing is the asked level (to the row spacing)
+    from thermoplane.physics import burning
+    eps = float(burning.epsilon(100.0, 10 ** row["log_T"], ph.Composition.from_xyz(0.7, 0.28, 0.02), "pp"))
+    assert math.log10(eps) == pytest.approx(1.0, abs=0.01)
+    for bad in ("x", "-1", "0"):
+        r = run("track", path, "--eps-levels", bad)
+        assert r.returncode == 2 and "--eps-levels" in r.stderr and "Traceback" not in r.stderr
+    r = run("track", path, "--processes", "fusion")
+    assert r.returncode == 2 and "unknown burning process" in r.stderr
+
+
+def test_track_reads_decimal_commas(tmp_path):
+    path = tmp_path / "sheet.csv"
+    path.write_bytes("sep=;\nage;rho;T;\n0;1,5E+02;1,2E+07;\n1;2,818383e+04;2,0e+07;\n".encode())
+    data = track_json(path, *CLASSICAL)
+    assert data["rows"] == 2 and data["bad_rows"] == []

@@ -10,7 +10,8 @@ import pytest
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
-from thermoplane.app.upload import (MAX_BYTES, MAX_ROWS, ColumnMapping, TableError, TrackData, apply_mapping,
+from thermoplane.app.upload import (MAX_BYTES, MAX_ROWS, ColumnMapping, LayoutError, TableError, TrackData,
+                                    apply_mapping, preview_lines,
                         detect_columns, read_table, to_numbers)
 
 EXAMPLES = Path(__file__).resolve().parents[2] / "assets" / "examples"
@@ -270,9 +271,49 @@ def test_detect_si(name):
 
 
 def test_detect_age_priority_and_teff_ignored():
-    df = _df(model_number=[1, 2], star_age=[0.0, 1e6], log_Teff=[3.7, 3.8], log_Tc=[7.1, 7.2], log_rho_c=[1, 2])
+    df = _df(model=[1, 2], age_yr=[0.0, 1e6], log_Teff=[3.7, 3.8], log_Tc=[7.1, 7.2], log_rho_c=[1, 2])
     m = detect_columns(df)
-    assert m.age_col == "star_age" and m.T_col == "log_Tc" and m.rho_col == "log_rho_c"
+    assert m.age_col == "age_yr" and m.T_col == "log_Tc" and m.rho_col == "log_rho_c"
+
+
+@pytest.mark.parametrize("name,role", [("time [s]", "age"), ("stellar age", "age"), ("model", "step"),
+                                       ("step", "step"), ("iteration", "step")])
+def test_detect_parameter_from_plain_words(name, role):
+    m = detect_columns(_df(**{name: [1.0, 2.0], "rho": [1.0, 2.0], "T": [1e7, 2e7]}))
+    assert m.age_col == name
+
+
+def test_nuclides_need_a_separator():
+    from thermoplane.app.upload import nuclide_of
+    assert nuclide_of("C-12") == "C-12" and nuclide_of("central O_16") == "O-16" and nuclide_of("X(He-4)") == "He-4"
+    assert nuclide_of("C12") is None and nuclide_of("Xx-99") is None
+
+
+@pytest.mark.parametrize("names,expect", [
+    (("central hydrogen", "central helium"), ("X", "Y")),
+    (("X", "Z"), ("X", "Z")),
+])
+def test_detect_composition_words(names, expect):
+    m = detect_columns(_df(**{names[0]: [0.7, 0.5], names[1]: [0.28, 0.02], "rho": [1.0, 2.0], "T": [1e7, 2e7]}))
+    got = {"X": m.X_col, "Y": m.Y_col, "Z": m.Z_col}
+    assert [got[r] for r in expect] == list(names)
+
+
+def test_nuclide_columns_detected_and_applied():
+    df = _df(**{"log_rho": [1.0, 2.0], "log_T": [7.0, 7.1], "H-1": [0.7, 0.0], "He-4": [0.28, 0.98],
+                "X(C-12)": [0.01, 0.01], "O-16": [0.01, 0.01]})
+    m = detect_columns(df)
+    assert m.nuclide_cols == {"H-1": "H-1", "He-4": "He-4", "C-12": "X(C-12)", "O-16": "O-16"}
+    t = apply_mapping(df, m)
+    assert t.X.tolist() == [0.7, 0.0] and t.Y.tolist() == [0.28, 0.98]
+    assert t.metals == {"C-12": 0.5, "O-16": 0.5} and not t.bad_rows
+
+
+def test_xyz_columns_any_two_give_the_third():
+    df = _df(log_rho=[1.0, 2.0, 3.0], log_T=[7.0, 7.1, 7.2], X=[0.7, 0.5, 0.5], Z=[0.02, 0.02, 0.6])
+    t = apply_mapping(df, ColumnMapping(rho_col="log_rho", T_col="log_T", X_col="X", Z_col="Z"))
+    assert np.allclose(t.Y[:2], [0.28, 0.48])
+    assert t.bad_rows == [2] and "add up to 1" in t.bad_reasons[2]
 
 
 def test_detect_lowercase_t_is_time():
@@ -295,9 +336,9 @@ def test_detect_log_from_values_is_noted():
 
 def test_detect_composition_and_label():
     df = pd.DataFrame({"phase": ["MS", "RGB"], "log_rho": [1.0, 5.0], "log_T": [7.1, 7.8],
-                       "X_c": [0.7, 0.0], "he4": [0.28, 0.98]})
+                       "X_c": [0.7, 0.0], "helium": [0.28, 0.98]})
     m = detect_columns(df)
-    assert (m.X_col, m.Y_col, m.label_col) == ("X_c", "he4", "phase")
+    assert (m.X_col, m.Y_col, m.label_col) == ("X_c", "helium", "phase")
     assert m.age_col is None            # row number fallback
 
 
@@ -395,3 +436,40 @@ def test_example_files(name, n, rho_col, T_col):
     t = apply_mapping(df, m)
     assert len(t) == n and t.bad_rows == []
     assert np.all(np.isfinite(t.log_rho)) and np.all((t.log_T > 3) & (t.log_T < 9))
+
+
+# -- headers with units, decimal commas, the reader's choices (issue 14 items 3 and 4) --------------
+def test_whitespace_header_with_units_inside_names():
+    text = b"m/Msun   log10(rho/g cm^-3)   log10(T/K)\n0.1 2.0 7.1\n0.2 1.9 7.0\n"
+    df = read_table(text)
+    assert list(df.columns) == ["m/Msun", "log10(rho/g cm^-3)", "log10(T/K)"]
+    m = detect_columns(df)
+    assert (m.rho_col, m.T_col, m.rho_log, m.T_log) == ("log10(rho/g cm^-3)", "log10(T/K)", True, True)
+    single = read_table(b"m/Msun log10(rho/kg m^-3) log10(T/K)\n0.1 2.0 7.1\n")
+    assert detect_columns(single).units == "si" and single.shape == (1, 3)
+    assert list(read_table(b"m rho [g cm^-3] T [K]\n1 2 3\n").columns) == ["m", "rho [g cm^-3]", "T [K]"]
+
+
+def test_decimal_commas_from_spreadsheets():
+    text = "sep=;\nage;rho;T;\n1;2,818383e+04;1,2E+07;\n2;-3,5;1,3e7;\n".encode()
+    df = read_table(text)
+    assert list(df.columns) == ["age", "rho", "T"]
+    assert df["rho"].tolist() == [28183.83, -3.5] and df["T"].tolist() == [1.2e7, 1.3e7]
+    tab = read_table(b"rho\tT\n2,5\t1,2e7\n")
+    assert tab["rho"].tolist() == [2.5]
+
+
+def test_reader_choices_delimiter_header_line_and_skipped_lines():
+    text = b"produced by my code\nrho T\n1 2\n3 4 5\n6 7\n"
+    with pytest.raises(LayoutError):
+        read_table(text)
+    df = read_table(text, header_line=2, skip_ragged=True)
+    assert df.values.tolist() == [[1.0, 2.0], [6.0, 7.0]] and df.attrs["skipped_lines"] == [4]
+    df = read_table(b"1;2\n3;4\n", header_line=0, delimiter="semicolon")
+    assert list(df.columns) == ["column_1", "column_2"] and df["column_2"].tolist() == [2.0, 4.0]
+    with pytest.raises(TableError, match="delimiter"):
+        read_table(b"a b\n1 2\n", delimiter="space")
+    with pytest.raises(TableError, match="no line 9"):
+        read_table(b"a b\n1 2\n", header_line=9)
+    assert preview_lines(b"a b\n1 2\n") == ["a b", "1 2"]
+    assert preview_lines(b"\x00\x01") == []

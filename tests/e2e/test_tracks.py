@@ -56,7 +56,7 @@ def test_upload_map_download_broken_file_and_reload(server_url, page, tmp_path):
     page.set_input_files("#tracks-upload input", str(EXAMPLES / "example_central_track.csv"))
     lines = _wait_tracks(page, 1)
     assert lines[0][0] == 60 and lines[0][2] == "example_central_track.csv"     # every row drawn (60 < 20k)
-    page.wait_for_selector("#tracks-crossings td", timeout=TIMEOUT)
+    page.wait_for_selector("#tracks-crossings .ag-row", timeout=TIMEOUT)
     table = page.inner_text("#tracks-crossings")
     assert "electron degeneracy" in table
     assert "60 rows, 0 bad; parameter: age_yr" in page.inner_text("#tracks-info")
@@ -67,7 +67,8 @@ def test_upload_map_download_broken_file_and_reload(server_url, page, tmp_path):
     _choose(page, "track-age-col", "model")
     page.wait_for_function("() => document.querySelector('#tracks-info').innerText.includes('parameter: model')",
                            timeout=TIMEOUT)
-    first_param = page.locator("#tracks-crossings td[data-dash-column='age']").first.inner_text()
+    first_param = page.locator("#tracks-crossings .ag-center-cols-container .ag-row[row-index='0'] "
+                               ".ag-cell[col-id='age']").inner_text()
     assert 1 <= float(first_param) <= 60                                        # a model number, not an age
 
     # switching the shaded quantity redraws the map: the track stays on it

@@ -11,7 +11,8 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 
 from thermoplane.physics import Composition, constants as const, equality_temperature, evaluate
-from thermoplane.physics.tracks import (BOUNDARY_FIELDS, CROSSING_COLUMNS, PAIR_ONSET, RHO_YE_RELATIVISTIC,
+from thermoplane.physics.tracks import (BOUNDARY_FIELDS, COMPOSITION_COLUMNS, CROSSING_COLUMNS, PAIR_ONSET,
+                                        RHO_YE_RELATIVISTIC, ignition_key,
                             boundary_fields, downsample, evaluate_track, find_crossings, track_report)
 
 CLASSICAL = dict(electrons="classical", ionization="full", coulomb=False, pairs=False)
@@ -303,7 +304,7 @@ def test_track_report_shapes_and_errors():
     cols, cr = track_report(lr, lT, SUN, valid=valid, **CLASSICAL)
     assert len(cols) == 50 and {"P", "eta", "Gamma", "x_F", "ye_full"} <= set(cols.columns)
     assert np.isnan(cols.P.iloc[10]) and not np.isnan(cols.P.iloc[11])
-    assert list(cr.columns) == CROSSING_COLUMNS and set(cr.boundary) <= set(BOUNDARY_FIELDS)
+    assert list(cr.columns) == CROSSING_COLUMNS + COMPOSITION_COLUMNS and set(cr.boundary) <= set(BOUNDARY_FIELDS)
     assert 10 not in set(cr.row) | set(cr.row_after)
     with pytest.raises(ValueError, match="unknown boundary"):
         track_report(lr, lT, SUN, boundaries=["nope"])
@@ -312,3 +313,45 @@ def test_track_report_shapes_and_errors():
 def test_empty_crossings_frame():
     out = find_crossings({"a": np.ones(3)}, {"a": 0.0}, np.zeros(3), np.zeros(3))
     assert isinstance(out, pd.DataFrame) and list(out.columns) == CROSSING_COLUMNS and len(out) == 0
+
+
+def test_crossings_say_which_composition_they_used():
+    lr = np.linspace(-2.0, 6.0, 41)
+    lT = np.full(41, 7.0)
+    X = np.linspace(0.7, 0.0, 41)
+    Y = 0.98 - X
+    _, cr = track_report(lr, lT, SUN, X=X, Y=Y, boundaries=["degeneracy"], **CLASSICAL)
+    assert len(cr) == 1 and cr.composition.iloc[0] == "track"
+    r, ra, w = int(cr.row.iloc[0]), int(cr.row_after.iloc[0]), float(cr.fraction.iloc[0])
+    assert cr.X.iloc[0] == pytest.approx(X[r] + w * (X[ra] - X[r]))
+    assert cr.X.iloc[0] + cr.Y.iloc[0] + cr.Z.iloc[0] == pytest.approx(1.0)
+    # the crossing sits where eta = 0 for that row's own composition (independent evaluation)
+    comp = Composition.from_xyz(float(cr.X.iloc[0]), float(cr.Y.iloc[0]), float(cr.Z.iloc[0]))
+    s = evaluate(10.0 ** cr.log_rho.iloc[0], 1e7, comp, **CLASSICAL)
+    assert abs(float(s.eta)) < 0.05
+    _, cr2 = track_report(lr, lT, SUN, boundaries=["degeneracy"], **CLASSICAL)
+    assert cr2.composition.iloc[0] == "panel" and cr2.X.iloc[0] == pytest.approx(SUN.hydrogen)
+
+
+def test_ignition_crossings_at_given_levels():
+    from thermoplane.physics import burning
+    lT = np.linspace(6.5, 8.5, 201)
+    lr = np.full(201, 2.0)
+    _, cr = track_report(lr, lT, SUN, boundaries=[], ignition=[("pp", 1.0), ("pp", 1e3)], **CLASSICAL)
+    assert list(cr.boundary) == [ignition_key("pp", 1.0), ignition_key("pp", 1e3)]
+    for level, t in zip((1.0, 1e3), cr.log_T):
+        eps = float(burning.epsilon(100.0, 10.0 ** t, SUN, "pp"))
+        assert np.log10(eps) == pytest.approx(np.log10(level), abs=0.02)
+    with pytest.raises(ValueError, match="> 0"):
+        track_report(lr, lT, SUN, ignition=[("pp", -1.0)])
+    with pytest.raises(ValueError, match="unknown burning process"):
+        track_report(lr, lT, SUN, ignition=[("fusion", 1.0)])
+
+
+def test_report_is_generic_over_the_lines_regimes_defines(monkeypatch):
+    from thermoplane.physics import regimes, tracks
+    monkeypatch.setattr(regimes, "BOUNDARY_KEYS", regimes.BOUNDARY_KEYS + ("hot",))
+    monkeypatch.setitem(regimes._FIELDS, "hot", lambda s: np.log10(s.T) - 7.0)
+    assert "hot" in tracks.track_boundaries()
+    _, cr = track_report(np.full(11, 1.0), np.linspace(6.5, 7.5, 11), SUN, **CLASSICAL)
+    assert "hot" in set(cr.boundary)
