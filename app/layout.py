@@ -11,7 +11,7 @@ from __future__ import annotations
 from dash import dash_table, dcc, html
 
 from .. import physics as ph
-from ..physics import burning, impact, plane, regimes
+from ..physics import burning, eos, impact, plane, regimes
 
 from . import figures
 from .callbacks.layers import NU_PROCESS_CATEGORIES
@@ -90,7 +90,7 @@ def _radio(id_, option, value):
     return dcc.RadioItems(
         id=id_, value=value, inline=True, className="radio",
         options=[{"label": html.Span(OPTION_LABELS[v], title=OPTION_HELP[(option, v)]), "value": v}
-                 for v in ph.OPTIONS[option]])
+                 for v in eos.MAP_OPTIONS[option]])
 
 
 def physics_panel(c: dict) -> html.Section:

@@ -251,8 +251,8 @@ def _decode_one(key: str, text: str):
             raise ValueError("too many rows")
         return tuple(rows)
     if key in ("electrons", "ionization"):
-        if text not in eos.OPTIONS[key]:
-            raise ValueError(f"use one of {', '.join(eos.OPTIONS[key])}")
+        if text not in eos.MAP_OPTIONS[key]:
+            raise ValueError(f"use one of {', '.join(eos.MAP_OPTIONS[key])}")
         return text
     if key in ("log_rho", "log_T"):
         limits = plane.LOG_RHO_LIMITS if key == "log_rho" else plane.LOG_T_LIMITS

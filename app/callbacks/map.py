@@ -19,6 +19,7 @@ from .. import figures
 from ..state import COLOR_CHOICES, CONTROLS, DEFAULT_VIEW, controls_to_view, encode_view
 from ..view import (ASINH_SCALES, ViewError, _range, composition_from_inputs, jsonable, overlay_lines, parse_view,  # noqa: F401
                     physics_options, quantity, track_overlay, view_from_store)
+from . import layers
 from .composition import readout
 
 log = logging.getLogger(__name__)

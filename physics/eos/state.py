@@ -18,7 +18,7 @@ from ..matter import matter
 from ..thermo import Part, radiation, response
 
 __all__ = ["ThermoState", "evaluate", "equality_temperature", "FIELD_UNITS", "FIELD_DESCRIPTIONS",
-           "OPTIONS", "validate_options"]
+           "OPTIONS", "MAP_OPTIONS", "EXPERIMENTAL", "validate_options"]
 
 #: Allowed values of each physics option; the first is the default.
 OPTIONS = {
@@ -28,6 +28,11 @@ OPTIONS = {
     "pairs": (True, False),
 }
 DEFAULTS = {key: values[0] for key, values in OPTIONS.items()}
+#: Option values a live map cannot afford: the chemical picture solves an equilibrium per point (~1e3 times
+#: the default's cost; Python and command line only until it is tabulated, see the README).
+EXPERIMENTAL = {("ionization", "chemical")}
+#: The options the dashboard and the impact maps offer.
+MAP_OPTIONS = {key: tuple(v for v in values if (key, v) not in EXPERIMENTAL) for key, values in OPTIONS.items()}
 
 
 #: cgs unit of every ThermoState field (for display and export).
