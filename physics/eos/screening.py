@@ -5,7 +5,8 @@ ion, lower the ions' free energy, from Debye–Hückel plasmas to degenerate whi
 
 Free energy per ion over kT (same form in the liquid and the solid, see Notes):
 
-    f_sc = -(1/9) [(3 Gamma + s^2)^(3/2) - (3 Gamma)^(3/2) - s^3] * sqrt(1 + Gamma / Gamma_x),
+    f_sc = (f_w + y f_s) / (1 + y),  y = (Gamma / Gamma_x)^4,
+    f_w = -(1/9) [(3 Gamma + s^2)^(3/2) - (3 Gamma)^(3/2) - s^3],   f_s = -(18/175) Gamma s^2,
     s^2 = q^2 / (1 + q^2),  q = k_e a_i,  k_e^2 = 4 pi e^2 (dn_e / dmu_e),
 
 Notes
@@ -18,8 +19,11 @@ Notes
 - Strong coupling, degenerate electrons: linear response in the ion sphere with Thomas–Fermi screening
   gives f_sc = -(18/175) Gamma q^2 (our derivation: -(q^2/2) int_0^1 (psi - <psi>)^2 s^2 ds over the
   ion-sphere potential; it equals the Thomas–Fermi coefficient a_TF = 0.00352 of Potekhin & Chabrier 2000,
-  Phys. Rev. E 62, 8554, eq. (26), in the non-relativistic limit). Gamma_x = 7.877 makes the product
-  above tend to that limit; the square root is our interpolation between the two limits.
+  Phys. Rev. E 62, 8554, eq. (26), in the non-relativistic limit). Gamma_x = 7.877 is where the two
+  small-q slopes, (sqrt3/6) Gamma^(1/2) and (18/175) Gamma, meet; the weight y is our interpolation. At
+  large Gamma the remainder falls as Gamma^(-3), so F -> const + O(T^2) and S -> 0 in the crystal
+  (the third law; a Gamma^(1/2) term there would leave an entropy diverging as T -> 0), and the
+  remainder's (negative) entropy stays far below the degenerate electrons' own (linear in T).
 - dn_e/dmu_e: n_e / kT_eff with kT_eff = sqrt((kT)^2 + E_d^2), E_d = p_F^2 c^2 / (3 mu_F) the exact
   T = 0 value (relativistic); exact in both limits, interpolated between (our choice).
 - s^2 = q^2 / (1 + q^2) caps the screening where the screening length falls below the ion sphere (linear
@@ -78,8 +82,13 @@ def screening_ion(n_e, T, Z, A):
     q2 = screening_q2(n_e, T, Z)
     s2 = jet.div(q2, jet.addc(q2, 1.0))
     G3 = jet.scale(G, 3.0)
-    w = jet.sub(jet.sub(jet.pow_(jet.add(G3, s2), 1.5), jet.pow_(G3, 1.5)), jet.pow_(s2, 1.5))
-    return jet.mul(jet.scale(w, -1.0 / 9.0), jet.sqrt(jet.addc(jet.scale(G, 1.0 / GAMMA_X), 1.0)))
+    fw = jet.scale(jet.sub(jet.sub(jet.pow_(jet.add(G3, s2), 1.5), jet.pow_(G3, 1.5)), jet.pow_(s2, 1.5)),
+                   -1.0 / 9.0)
+    fs = jet.scale(jet.mul(G, s2), -18.0 / 175.0)
+    g = jet.scale(G, 1.0 / GAMMA_X)
+    g2 = jet.mul(g, g)
+    y = jet.mul(g2, g2)
+    return jet.div(jet.add(fw, jet.mul(y, fs)), jet.addc(y, 1.0))
 
 
 @njit(cache=True)

@@ -13,9 +13,10 @@ import numpy as np
 
 from .. import constants as const
 from ..composition import Composition
-from ..coulomb import coulomb_part, coupling_parameter
+from ..coulomb import coupling_parameter
 from ..matter import matter
 from ..thermo import radiation, response
+from .dense_plasma import dense_parts, mixture_plasma_temperature
 
 __all__ = ["ThermoState", "evaluate", "equality_temperature", "FIELD_UNITS", "FIELD_DESCRIPTIONS",
            "OPTIONS", "validate_options"]
@@ -43,13 +44,16 @@ FIELD_UNITS = {
     "dE_drho": "erg g^-1 / (g cm^-3)", "dS_dT": "erg g^-1 K^-2",
     "ion_H": "", "ion_He1": "", "ion_He2": "", "mean_Z": "",
     "n_minus": "cm^-3", "n_plus": "cm^-3",
+    "crystallized": "", "T_p": "K", "c_V_ion": "erg g^-1 K^-1", "c_V_e": "erg g^-1 K^-1",
+    "c_V_rad": "erg g^-1 K^-1",
 }
 
 FIELD_DESCRIPTIONS = {
     "rho": "density", "T": "temperature",
     "P": "total pressure", "P_gas": "gas pressure (ions + electrons/positrons + Coulomb)",
     "P_rad": "radiation pressure", "P_ion": "ion pressure", "P_e": "electron + positron pressure",
-    "P_coul": "Coulomb correction to the pressure",
+    "P_coul": "non-ideal correction to the pressure (ion Coulomb liquid or crystal, screening, "
+              "electron exchange-correlation)",
     "E": "specific internal energy", "S": "specific entropy",
     "beta": "P_gas / P", "eta": "electron degeneracy parameter (mu_e - m_e c^2)/kT",
     "ye": "free electrons per nucleon, net of positrons",
@@ -62,6 +66,11 @@ FIELD_DESCRIPTIONS = {
     "ion_H": "fraction of hydrogen ionized", "ion_He1": "fraction of helium at least singly ionized",
     "ion_He2": "fraction of helium doubly ionized", "mean_Z": "mean free electrons per nucleus",
     "n_minus": "electron number density", "n_plus": "positron number density",
+    "crystallized": "1 where the ion crystal has the lower free energy, else 0",
+    "T_p": "ion plasma temperature hbar omega_p / k (ions are quantum below it)",
+    "c_V_ion": "ion part of c_V (ideal ions + liquid or lattice + screening)",
+    "c_V_e": "electron part of c_V (electrons, positrons, ionization, exchange-correlation)",
+    "c_V_rad": "radiation part of c_V",
 }
 
 
@@ -104,6 +113,11 @@ class ThermoState:
     mean_Z: np.ndarray
     n_minus: np.ndarray
     n_plus: np.ndarray
+    crystallized: np.ndarray
+    T_p: np.ndarray
+    c_V_ion: np.ndarray
+    c_V_e: np.ndarray
+    c_V_rad: np.ndarray
 
     def as_dict(self) -> dict[str, np.ndarray]:
         return {f.name: getattr(self, f.name) for f in fields(self)}
@@ -185,14 +199,22 @@ def evaluate(rho, T, comp: Composition, **options) -> ThermoState:
     Gamma_e, Gamma = coupling_parameter(rho, T, comp.X, comp.A, comp.Z)
     gas_part = gas.part
     P_coul = np.zeros_like(rho)
+    crystallized = np.zeros_like(rho)
+    N_nuc = float(np.sum(comp.X / (comp.A * const.m_u)))
+    c_V_ion = 1.5 * const.k_B * N_nuc + np.zeros_like(rho)
     if opts["coulomb"]:
-        # Our own rule (see the module docstring): the fully ionized OCP correction, scaled by the
-        # square of the ionized fraction so it fades out as matter recombines; the scale is held
-        # fixed in the derivatives.
-        ionized = gas.n_net / gas.n_full
-        coul = coulomb_part(rho, T, comp.X, comp.A, comp.Z, scale=np.clip(ionized, 0.0, 1.0) ** 2)
-        gas_part = gas_part + coul
-        P_coul = coul.P
+        # Dense-plasma terms of fully ionized matter (physics.eos.dense_plasma). Where matter is not fully
+        # ionized they are scaled by the square of the ionized fraction, held fixed in the derivatives (our
+        # interim rule until the chemical-picture free energy carries them per species).
+        ionized = np.clip(gas.n_net / gas.n_full, 0.0, 1.0)
+        ion_p, ele_p, crystal, _ = dense_parts(rho, T, comp.X, comp.A, comp.Z, scale=ionized**2)
+        gas_part = gas_part + ion_p + ele_p
+        P_coul = ion_p.P + ele_p.P
+        crystallized = crystal.astype(float)
+        c_V_ion = c_V_ion + ion_p.E_T
+    keep = comp.Z > 0
+    T_p = mixture_plasma_temperature(rho * float(np.sum(comp.X[keep] * comp.Z[keep] / (comp.A[keep] * const.m_u))),
+                                     comp.Z[keep], comp.A[keep], (comp.X / comp.A)[keep])
     total = gas_part + rad
     resp = response(total, rho, T)
     return ThermoState(
@@ -200,7 +222,8 @@ def evaluate(rho, T, comp: Composition, **options) -> ThermoState:
         P_coul=P_coul, E=total.E, S=total.S, beta=gas_part.P / total.P, eta=gas.eta,
         ye=gas.n_net * const.m_u / rho, Gamma=Gamma, dP_drho=total.P_rho, dP_dT=total.P_T,
         dE_drho=total.E_rho, dS_dT=total.S_T, ion_H=gas.ion_H, ion_He1=gas.ion_He1, ion_He2=gas.ion_He2,
-        mean_Z=gas.mean_Z, n_minus=gas.n_minus, n_plus=gas.n_plus, **resp)
+        mean_Z=gas.mean_Z, n_minus=gas.n_minus, n_plus=gas.n_plus, crystallized=crystallized, T_p=T_p,
+        c_V_ion=c_V_ion, c_V_e=resp["c_V"] - c_V_ion - rad.E_T, c_V_rad=rad.E_T, **resp)
 
 
 def equality_temperature(rho, comp: Composition, **options) -> np.ndarray:
