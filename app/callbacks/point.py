@@ -19,7 +19,8 @@ from .map import ViewError, parse_view, view_from_store
 
 log = logging.getLogger(__name__)
 
-__all__ = ["SI", "to_si", "point_values", "state_table", "as_json", "as_csv", "pin_point", "register"]
+__all__ = ["SI", "to_si", "point_values", "state_table", "as_json", "as_csv", "cv_split", "pin_point",
+           "register"]
 
 #: cgs unit -> (SI unit, factor: value_SI = factor * value_cgs).
 SI = {
@@ -89,6 +90,18 @@ def as_csv(table_rows) -> str:
     return buf.getvalue()
 
 
+def cv_split(values: dict[str, float]) -> str:
+    """c_V in words: its ion, electron and radiation parts as fractions, and the ions' phase."""
+    c = values["c_V"]
+    if not (math.isfinite(c) and c != 0.0):
+        return ""
+    parts = ", ".join(f"{name} {100.0 * values[key] / c:.3g} %" for name, key in
+                      (("ions", "c_V_ion"), ("electrons", "c_V_e"), ("radiation", "c_V_rad")))
+    phase = "crystal" if values.get("crystallized", 0.0) > 0.5 else "liquid or gas"
+    quantum = " (quantum, T < T_p)" if values["T"] < values["T_p"] else ""
+    return f"c_V = {c:.4g} erg g⁻¹ K⁻¹: {parts}; ions: {phase}{quantum}"
+
+
 def pin_point(click, units, store):
     """Callback body: (heading, table, JSON text, CSV text, message)."""
     try:
@@ -103,6 +116,7 @@ def pin_point(click, units, store):
         table_rows = rows(values, units)
         heading = (f"Pinned: log ρ = {log_rho:.3f}, log T = {log_T:.3f}  "
                    f"(ρ = {10 ** log_rho:.4g} g cm⁻³, T = {10 ** log_T:.4g} K)")
+        heading = [heading, html.Br(), cv_split(values)]
         point = {"log_rho": log_rho, "log_T": log_T, "composition": comp.to_dict(), "options": opts}
         return heading, state_table(table_rows), as_json(point, table_rows, units), as_csv(table_rows), ""
     except (ViewError, ValueError) as err:

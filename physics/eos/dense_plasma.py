@@ -48,8 +48,9 @@ def mixture(n_e, T, Z, A, x):
     """Liquid and solid sums, the chosen phase, and the electron exchange-correlation at one point.
 
     Parameters: n_e (cm^-3), T (K), arrays Z, A, x (number fractions of ions, summing to 1).
-    Returns (liquid, solid, ion, solid_flag, electron): jets per ion (liquid, solid, chosen ion part, each
-    with screening), 1.0 where the crystal wins else 0.0, and the exchange-correlation jet per electron.
+    Returns (liquid, solid, ion, margin, electron): jets per ion (liquid, solid, chosen ion part, each
+    with screening), margin = f_solid - f_liquid per ion (< 0 where the crystal wins; pushed to at least
+    0.1 in size where one phase is no candidate), and the exchange-correlation jet per electron.
     """
     liq = jet.const(0.0)
     sol = jet.const(0.0)
@@ -61,9 +62,16 @@ def mixture(n_e, T, Z, A, x):
         liq = jet.add(liq, jet.scale(jet.add(liquid_ion(n_e, T, Z[i], A[i]), sc), x[i]))
         sol = jet.add(sol, jet.scale(jet.add(solid_ion(n_e, T, Z[i], A[i]), sc), x[i]))
         g_mean += x[i] * coupling(n_e, T, Z[i])[0]
-    solid = (g_mean >= GAMMA_SOLID_MIN and sol[0] < liq[0]) or g_mean > GAMMA_LIQUID_MAX
+    # the margin f_solid - f_liquid, kept away from zero where a phase is no candidate, so that its sign is
+    # the phase and its zero the melting line (no spurious zeros at the candidacy limits)
+    margin = sol[0] - liq[0]
+    if g_mean < GAMMA_SOLID_MIN:
+        margin = max(margin, 0.1)
+    elif g_mean > GAMMA_LIQUID_MAX:
+        margin = min(margin, -0.1)
+    solid = margin < 0.0
     ion = sol if solid else liq
-    return liq, sol, ion, 1.0 if solid else 0.0, electron_xc(n_e, T, 1.0, 1.0)
+    return liq, sol, ion, margin, electron_xc(n_e, T, 1.0, 1.0)
 
 
 @njit(cache=True)
@@ -96,8 +104,8 @@ def mixture_free_energy(n_e, T, Z, A, x):
     flag = np.empty(n)
     _many(np.ascontiguousarray(n_e).ravel(), np.ascontiguousarray(T).ravel(), Z, A, x, liq, sol, ion, flag, ele)
     r = lambda a: a.reshape(a.shape[:-1] + shape)  # noqa: E731
-    return dict(liquid=r(liq), solid=r(sol), ion=r(ion), crystallized=r(flag) > 0.5, electron=r(ele),
-                mean_Z=float(np.sum(x * Z)))
+    return dict(liquid=r(liq), solid=r(sol), ion=r(ion), crystallized=r(flag) < 0.0, margin=r(flag),
+                electron=r(ele), mean_Z=float(np.sum(x * Z)))
 
 
 def mixture_plasma_temperature(n_e, Z, A, x):
@@ -126,7 +134,7 @@ def dense_parts(rho, T, X, A, Z, scale=1.0):
     ``scale`` multiplies both parts and is held fixed in the derivatives (the equation of state passes the
     square of the ionized fraction where matter is not fully ionized).
 
-    Returns (ion_part, electron_part, crystallized, T_p).
+    Returns (ion_part, electron_part, crystallized, margin): margin = f_solid - f_liquid per ion over kT.
     """
     per_mass = np.asarray(X, float) / (np.asarray(A, float) * const.m_u)
     Z = np.asarray(Z, float)
@@ -140,5 +148,4 @@ def dense_parts(rho, T, X, A, Z, scale=1.0):
     if not np.all(np.asarray(scale) == 1.0):
         ion = Part(*(getattr(ion, f) * scale for f in Part.__dataclass_fields__))
         ele = Part(*(getattr(ele, f) * scale for f in Part.__dataclass_fields__))
-    T_p = mixture_plasma_temperature(n_e, Z[keep], np.asarray(A, float)[keep], per_mass[keep] / N_ion)
-    return ion, ele, res["crystallized"], T_p
+    return ion, ele, res["crystallized"], res["margin"]

@@ -44,7 +44,7 @@ FIELD_UNITS = {
     "dE_drho": "erg g^-1 / (g cm^-3)", "dS_dT": "erg g^-1 K^-2",
     "ion_H": "", "ion_He1": "", "ion_He2": "", "mean_Z": "",
     "n_minus": "cm^-3", "n_plus": "cm^-3",
-    "crystallized": "", "T_p": "K", "c_V_ion": "erg g^-1 K^-1", "c_V_e": "erg g^-1 K^-1",
+    "crystallized": "", "T_p": "K", "melt_margin": "", "c_V_ion": "erg g^-1 K^-1", "c_V_e": "erg g^-1 K^-1",
     "c_V_rad": "erg g^-1 K^-1",
 }
 
@@ -68,6 +68,8 @@ FIELD_DESCRIPTIONS = {
     "n_minus": "electron number density", "n_plus": "positron number density",
     "crystallized": "1 where the ion crystal has the lower free energy, else 0",
     "T_p": "ion plasma temperature hbar omega_p / k (ions are quantum below it)",
+    "melt_margin": "free energy of the ion crystal minus the liquid, per ion over kT (< 0: crystal; "
+                   "NaN without Coulomb terms)",
     "c_V_ion": "ion part of c_V (ideal ions + liquid or lattice + screening)",
     "c_V_e": "electron part of c_V (electrons, positrons, ionization, exchange-correlation)",
     "c_V_rad": "radiation part of c_V",
@@ -115,6 +117,7 @@ class ThermoState:
     n_plus: np.ndarray
     crystallized: np.ndarray
     T_p: np.ndarray
+    melt_margin: np.ndarray
     c_V_ion: np.ndarray
     c_V_e: np.ndarray
     c_V_rad: np.ndarray
@@ -200,6 +203,7 @@ def evaluate(rho, T, comp: Composition, **options) -> ThermoState:
     gas_part = gas.part
     P_coul = np.zeros_like(rho)
     crystallized = np.zeros_like(rho)
+    melt_margin = np.full_like(rho, np.nan)
     N_nuc = float(np.sum(comp.X / (comp.A * const.m_u)))
     c_V_ion = 1.5 * const.k_B * N_nuc + np.zeros_like(rho)
     if opts["coulomb"]:
@@ -207,7 +211,7 @@ def evaluate(rho, T, comp: Composition, **options) -> ThermoState:
         # ionized they are scaled by the square of the ionized fraction, held fixed in the derivatives (our
         # interim rule until the chemical-picture free energy carries them per species).
         ionized = np.clip(gas.n_net / gas.n_full, 0.0, 1.0)
-        ion_p, ele_p, crystal, _ = dense_parts(rho, T, comp.X, comp.A, comp.Z, scale=ionized**2)
+        ion_p, ele_p, crystal, melt_margin = dense_parts(rho, T, comp.X, comp.A, comp.Z, scale=ionized**2)
         gas_part = gas_part + ion_p + ele_p
         P_coul = ion_p.P + ele_p.P
         crystallized = crystal.astype(float)
@@ -223,6 +227,7 @@ def evaluate(rho, T, comp: Composition, **options) -> ThermoState:
         ye=gas.n_net * const.m_u / rho, Gamma=Gamma, dP_drho=total.P_rho, dP_dT=total.P_T,
         dE_drho=total.E_rho, dS_dT=total.S_T, ion_H=gas.ion_H, ion_He1=gas.ion_He1, ion_He2=gas.ion_He2,
         mean_Z=gas.mean_Z, n_minus=gas.n_minus, n_plus=gas.n_plus, crystallized=crystallized, T_p=T_p,
+        melt_margin=melt_margin,
         c_V_ion=c_V_ion, c_V_e=resp["c_V"] - c_V_ion - rad.E_T, c_V_rad=rad.E_T, **resp)
 
 
