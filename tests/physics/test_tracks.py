@@ -27,7 +27,7 @@ def test_relativistic_density():
 
 def test_boundary_table():
     assert set(BOUNDARY_FIELDS) == {"equality", "degeneracy", "relativistic", "pairs", "coupling",
-                                    "crystallization", "h_ionization", "he_ionization"}
+                                    "crystallization", "quantum_ions", "h_ionization", "he_ionization"}
     # levels the design fixes (PHYSICS.md; crystallization: Potekhin & Chabrier 2000)
     assert BOUNDARY_FIELDS["crystallization"][1] == 175.0
     assert BOUNDARY_FIELDS["relativistic"][1] == 1.0
