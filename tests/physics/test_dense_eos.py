@@ -133,11 +133,14 @@ def test_identities_on_both_sides_of_the_melting_line(log_rho):
     below = _fd_identities(rho, Tm / 1.01, CO)
     above = _fd_identities(rho, Tm * 1.01, CO)
     assert below.crystallized == 1.0 and above.crystallized == 0.0
-    # latent heat: the energy jumps up on melting (per ion, in units of k T_m, about 0.7 for the classical OCP)
+    # latent heat: the energy jumps up on melting (per ion, in units of k T_m, about 0.7 for the classical
+    # OCP); our quantum liquid fades into the quantum lattice, so the jump shrinks for T_m < T_p
     s_lo, s_hi = ph.evaluate(rho, Tm * (1 - 1e-9), CO), ph.evaluate(rho, Tm * (1 + 1e-9), CO)
     N = np.sum(CO.X / (CO.A * sc.physical_constants["atomic mass constant"][0] * 1e3))
     q = float(s_hi.E - s_lo.E) / (N * sc.k * 1e7 * Tm)
-    assert 0.3 < q < 1.5
+    assert 0.0 < q < 1.5
+    if Tm > float(below.T_p):
+        assert q > 0.3
     assert float(s_hi.S - s_lo.S) == pytest.approx(float(s_hi.E - s_lo.E) / Tm, rel=1e-3)   # F continuous
 
 
