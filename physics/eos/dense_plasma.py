@@ -37,10 +37,41 @@ from .ion_solid import solid_ion
 from .plasma_parameters import coupling
 from .screening import screening_ion
 
-__all__ = ["mixture", "mixture_free_energy", "dense_parts", "GAMMA_LIQUID_MAX", "GAMMA_SOLID_MIN", "mixture_plasma_temperature"]
+__all__ = ["mixture", "mixture_chosen", "mixture_free_energy", "merge_trace_species", "dense_parts", "GAMMA_LIQUID_MAX", "GAMMA_SOLID_MIN", "mixture_plasma_temperature"]
 
 GAMMA_LIQUID_MAX = 1000.0
 GAMMA_SOLID_MIN = 100.0
+
+
+@njit(cache=True)
+def _mixture(n_e, T, Z, A, x, both):
+    g_mean = 0.0
+    for i in range(Z.size):
+        if x[i] > 0.0:
+            g_mean += x[i] * coupling(n_e, T, Z[i])[0]
+    need_solid = both or g_mean >= GAMMA_SOLID_MIN
+    need_liquid = both or g_mean <= GAMMA_LIQUID_MAX
+    nan = math.nan
+    liq = jet.const(0.0) if need_liquid else jet.const(nan)
+    sol = jet.const(0.0) if need_solid else jet.const(nan)
+    for i in range(Z.size):
+        if x[i] <= 0.0:
+            continue
+        sc = screening_ion(n_e, T, Z[i], A[i])
+        if need_liquid:
+            liq = jet.add(liq, jet.scale(jet.add(liquid_ion(n_e, T, Z[i], A[i]), sc), x[i]))
+        if need_solid:
+            sol = jet.add(sol, jet.scale(jet.add(solid_ion(n_e, T, Z[i], A[i]), sc), x[i]))
+    # the margin f_solid - f_liquid, kept away from zero where a phase is no candidate, so that its sign is
+    # the phase and its zero the melting line (no spurious zeros at the candidacy limits)
+    if g_mean < GAMMA_SOLID_MIN:
+        margin = max(sol[0] - liq[0], 0.1) if need_solid else 1.0
+    elif g_mean > GAMMA_LIQUID_MAX:
+        margin = min(sol[0] - liq[0], -0.1) if need_liquid else -1.0
+    else:
+        margin = sol[0] - liq[0]
+    ion = sol if margin < 0.0 else liq
+    return liq, sol, ion, margin, electron_xc(n_e, T, 1.0, 1.0)
 
 
 @njit(cache=True)
@@ -52,32 +83,21 @@ def mixture(n_e, T, Z, A, x):
     with screening), margin = f_solid - f_liquid per ion (< 0 where the crystal wins; pushed to at least
     0.1 in size where one phase is no candidate), and the exchange-correlation jet per electron.
     """
-    liq = jet.const(0.0)
-    sol = jet.const(0.0)
-    g_mean = 0.0
-    for i in range(Z.size):
-        if x[i] <= 0.0:
-            continue
-        sc = screening_ion(n_e, T, Z[i], A[i])
-        liq = jet.add(liq, jet.scale(jet.add(liquid_ion(n_e, T, Z[i], A[i]), sc), x[i]))
-        sol = jet.add(sol, jet.scale(jet.add(solid_ion(n_e, T, Z[i], A[i]), sc), x[i]))
-        g_mean += x[i] * coupling(n_e, T, Z[i])[0]
-    # the margin f_solid - f_liquid, kept away from zero where a phase is no candidate, so that its sign is
-    # the phase and its zero the melting line (no spurious zeros at the candidacy limits)
-    margin = sol[0] - liq[0]
-    if g_mean < GAMMA_SOLID_MIN:
-        margin = max(margin, 0.1)
-    elif g_mean > GAMMA_LIQUID_MAX:
-        margin = min(margin, -0.1)
-    solid = margin < 0.0
-    ion = sol if solid else liq
-    return liq, sol, ion, margin, electron_xc(n_e, T, 1.0, 1.0)
+    return _mixture(n_e, T, Z, A, x, True)
 
 
 @njit(cache=True)
-def _many(n_e, T, Z, A, x, liq, sol, ion, flag, ele):
+def mixture_chosen(n_e, T, Z, A, x):
+    """As :func:`mixture`, but a phase that is no candidate (mean Gamma < GAMMA_SOLID_MIN for the crystal,
+    > GAMMA_LIQUID_MAX for the liquid) is not computed: its jet is NaN and the margin is +1 or -1 there.
+    The equation of state uses this (half the cost over most of the plane)."""
+    return _mixture(n_e, T, Z, A, x, False)
+
+
+@njit(cache=True)
+def _many(n_e, T, Z, A, x, liq, sol, ion, flag, ele, both):
     for i in range(n_e.size):
-        a, b, c, d, e = mixture(n_e[i], T[i], Z, A, x)
+        a, b, c, d, e = _mixture(n_e[i], T[i], Z, A, x, both)
         liq[:, i] = a
         sol[:, i] = b
         ion[:, i] = c
@@ -85,7 +105,7 @@ def _many(n_e, T, Z, A, x, liq, sol, ion, flag, ele):
         ele[:, i] = e
 
 
-def mixture_free_energy(n_e, T, Z, A, x):
+def mixture_free_energy(n_e, T, Z, A, x, both=True):
     """Vectorised :func:`mixture` over arrays n_e, T (broadcast); Z, A, x 1-d arrays of the species.
 
     Returns a dict of arrays: ``liquid``, ``solid``, ``ion`` (each shape (6, ...), per ion, screening
@@ -102,7 +122,8 @@ def mixture_free_energy(n_e, T, Z, A, x):
     n = n_e.size
     liq, sol, ion, ele = (np.empty((6, n)) for _ in range(4))
     flag = np.empty(n)
-    _many(np.ascontiguousarray(n_e).ravel(), np.ascontiguousarray(T).ravel(), Z, A, x, liq, sol, ion, flag, ele)
+    _many(np.ascontiguousarray(n_e).ravel(), np.ascontiguousarray(T).ravel(), Z, A, x, liq, sol, ion, flag, ele,
+          bool(both))
     r = lambda a: a.reshape(a.shape[:-1] + shape)  # noqa: E731
     return dict(liquid=r(liq), solid=r(sol), ion=r(ion), crystallized=r(flag) < 0.0, margin=r(flag),
                 electron=r(ele), mean_Z=float(np.sum(x * Z)))
@@ -127,10 +148,37 @@ def _part(N, rho, T, g) -> Part:
                 S_rho=-N * k * (fn + fnT) / rho, S_T=-N * k * (fT + fTT) / T)
 
 
+#: species below this number fraction are merged into one mean species in :func:`dense_parts`
+TRACE_FRACTION = 0.01
+
+
+def merge_trace_species(Z, A, x, threshold=TRACE_FRACTION):
+    """Merge the species with number fraction < ``threshold`` into one mean species (for speed).
+
+    The mean species keeps the traces' total fraction, sum x Z^(5/3) (so the Madelung and OCP terms, linear
+    in Gamma, are unchanged) and sum x A. Returns (Z, A, x, offset): ``offset`` is the constant that
+    restores the ideal-ion reference, sum_i x_i [ln Z_i + 1.5 ln A_i] - x_m [ln Z_m + 1.5 ln A_m], to add to
+    f (it shifts S by a constant only, so the T -> 0 entropy stays exact). An approximation of ours: the
+    Coulomb terms of the traces (a fraction ~ their number fraction of the whole) change at the level of the
+    spread of their Z.
+    """
+    Z, A, x = (np.asarray(v, float) for v in (Z, A, x))
+    trace = x < threshold
+    if trace.sum() < 2:
+        return Z, A, x, 0.0
+    xm = x[trace].sum()
+    Zm = (np.sum(x[trace] * Z[trace] ** (5.0 / 3.0)) / xm) ** 0.6
+    Am = np.sum(x[trace] * A[trace]) / xm
+    offset = (np.sum(x[trace] * (np.log(Z[trace]) + 1.5 * np.log(A[trace])))
+              - xm * (np.log(Zm) + 1.5 * np.log(Am)))
+    return (np.append(Z[~trace], Zm), np.append(A[~trace], Am), np.append(x[~trace], xm), float(offset))
+
+
 def dense_parts(rho, T, X, A, Z, scale=1.0):
     """The dense-plasma terms of fully ionized matter as two :class:`Part` s (ions, electrons) per gram.
 
     n_e = rho sum_i X_i Z_i / (A_i m_u) (fully ionized), so d/d ln rho = d/d ln n_e at fixed composition.
+    Trace species (number fraction < 1 %) are merged (:func:`merge_trace_species`).
     ``scale`` multiplies both parts and is held fixed in the derivatives (the equation of state passes the
     square of the ionized fraction where matter is not fully ionized).
 
@@ -142,8 +190,11 @@ def dense_parts(rho, T, X, A, Z, scale=1.0):
     N_ion = float(np.sum(per_mass[keep]))
     N_e = float(np.sum(per_mass[keep] * Z[keep]))
     n_e = rho * N_e
-    res = mixture_free_energy(n_e, T, Z[keep], np.asarray(A, float)[keep], per_mass[keep] / N_ion)
-    ion = _part(N_ion, rho, T, res["ion"])
+    Zs, As, xs, offset = merge_trace_species(Z[keep], np.asarray(A, float)[keep], per_mass[keep] / N_ion)
+    res = mixture_free_energy(n_e, T, Zs, As, xs, both=False)
+    g_ion = res["ion"].copy()
+    g_ion[0] += offset
+    ion = _part(N_ion, rho, T, g_ion)
     ele = _part(N_e, rho, T, res["electron"])
     if not np.all(np.asarray(scale) == 1.0):
         ion = Part(*(getattr(ion, f) * scale for f in Part.__dataclass_fields__))

@@ -50,6 +50,8 @@ B3 = -1.0e-4
 B4 = 0.00462
 #: eta at which the liquid's classical excess over the lattice is halved (our choice; see above)
 ETA_FADE = 3.0
+#: below this eta the quantum correction is its Wigner–Kirkwood term alone
+ETA_SERIES = 1e-3
 
 
 @njit(cache=True)
@@ -78,6 +80,10 @@ def liquid_ion(n_e, T, Z, A):
     G = coupling(n_e, T, Z)
     eta = quantum(n_e, T, Z, A)
     f_ocp = ocp_liquid(G)
+    if eta[0] < ETA_SERIES:
+        # classical ions: the quantum correction is the Wigner–Kirkwood term (next term ~ eta^4, below
+        # 1e-12 kT here) and the fade term is O(eta^4) too; skipping them saves most of the cost
+        return jet.add(f_ocp, jet.scale(jet.mul(eta, eta), 1.0 / 24.0))
     f = jet.add(f_ocp, harmonic_quantum_correction(eta))
     lattice_cl = jet.sub(jet.addc(jet.add(jet.scale(G, MADELUNG_BCC), jet.scale(jet.log(eta), 3.0)),
                                   HARMONIC_CLASSICAL), ideal_ion(n_e, T, Z, A))
