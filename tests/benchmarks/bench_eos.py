@@ -50,7 +50,7 @@ def main():
         dense_parts(rho[:2, :2], T[:2, :2], comp.X, comp.A, comp.Z)          # compile / load the numba cache
         t_new = best(lambda: dense_parts(rho, T, comp.X, comp.A, comp.Z), 5)
         t_old = best(lambda: coulomb_part(rho, T, comp.X, comp.A, comp.Z), 5)
-        print(f"dense-plasma terms alone ({comp.Z.size} species, liquid + solid + screening + xc): "
+        print(f"dense-plasma terms alone ({comp.Z.size} nuclides, traces merged; liquid or solid + screening + xc): "
               f"{t_new * 1e3:.1f} ms = {t_new / t_exp:.0f} exp-units per point; previous ion-only OCP term: "
               f"{t_old * 1e3:.1f} ms = {t_old / t_exp:.0f} exp-units; ratio {t_new / t_old:.1f}")
     rng = np.random.default_rng(1)
