@@ -32,6 +32,7 @@ LINE_STYLES = {
     "pairs": ("#7f0000", "dashdot"),
     "coupling": ("#38761d", "dash"),
     "crystallization": ("#38761d", "solid"),
+    "quantum_ions": ("#7f6000", "dot"),
     "h_ionization": ("#674ea7", "dot"),
     "he_ionization": ("#674ea7", "dashdot"),
     "ignition": ("#b45f06", "longdash"),

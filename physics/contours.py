@@ -17,7 +17,7 @@ from __future__ import annotations
 import numpy as np
 
 from . import constants as const
-from .regimes import (BOUNDARY_LABELS, COUPLING_GAMMA, CRYSTALLIZATION_GAMMA, DEGENERACY_ETA,
+from .regimes import (BOUNDARY_LABELS, COUPLING_GAMMA, DEGENERACY_ETA,
                       HALF_IONIZATION, PAIR_ONSET, RELATIVISTIC_XF, _active_keys)
 
 __all__ = ["level_line", "grid_boundaries", "grid_ignition", "grid_mass_lines", "MAX_PIECES"]
@@ -83,7 +83,8 @@ def grid_boundaries(grid, comp, keys=None, **physics_options):
         "relativistic": (x[None, :] + log_ye, np.log10(const.n_e_relativistic * const.m_u * RELATIVISTIC_XF**3), "x"),
         "pairs": (grid.get("log_pair_fraction"), np.log10(PAIR_ONSET), "y"),
         "coupling": (grid.get("log_Gamma"), np.log10(COUPLING_GAMMA), "y"),
-        "crystallization": (grid.get("log_Gamma"), np.log10(CRYSTALLIZATION_GAMMA), "y"),
+        "crystallization": (grid.get("melt_margin"), 0.0, "y"),
+        "quantum_ions": (grid.get("log_T_Tp"), 0.0, "y"),
         "h_ionization": (grid.get("ion_H"), HALF_IONIZATION, "y"),
         "he_ionization": (grid.get("ion_He2"), HALF_IONIZATION, "y"),
     }

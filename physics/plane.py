@@ -35,7 +35,7 @@ LOG_T_LIMITS = (2.0, 12.0)
 RESOLUTION_LIMITS = (10, 1000)
 
 #: Fields a plane holds for the lines drawn from it (physics.contours), not offered as shadings.
-LEVEL_FIELDS = ("ion_H", "ion_He2", "log_pair_fraction", "log_P")
+LEVEL_FIELDS = ("ion_H", "ion_He2", "log_pair_fraction", "log_P", "melt_margin", "log_T_Tp")
 
 #: Number of physics evaluations done by :func:`plane_grid` (cache misses).
 EVALUATIONS = 0
@@ -179,6 +179,8 @@ def _compute(comp, lr, lt, n_rho, n_T, opts) -> PlaneGrid:
             "ion_He2": s.ion_He2,
             "log_pair_fraction": np.log10(np.maximum(s.n_plus / s.n_minus, 1e-300)),
             "log_P": np.log10(s.P),
+            "melt_margin": s.melt_margin,
+            "log_T_Tp": np.log10(s.T / s.T_p),
         }
     unavailable: list[str] = []
     try:

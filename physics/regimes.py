@@ -45,7 +45,7 @@ PARTIAL_IONIZATION = (0.01, 0.99)
 
 #: Keys of :func:`boundaries`, in drawing order.
 BOUNDARY_KEYS = ("equality", "degeneracy", "relativistic", "pairs", "coupling",
-                 "crystallization", "h_ionization", "he_ionization")
+                 "crystallization", "quantum_ions", "h_ionization", "he_ionization")
 #: Words a reader sees next to each line.
 BOUNDARY_LABELS = {
     "equality": "P_rad = P_gas",
@@ -53,7 +53,8 @@ BOUNDARY_LABELS = {
     "relativistic": "relativistic electrons (x_F = 1)",
     "pairs": f"pair onset (n₊/n₋ = {PAIR_ONSET:.0%})",
     "coupling": "strong coupling (Γ = 1)",
-    "crystallization": "crystallization (Γ = 175)",
+    "crystallization": "melting (crystal and liquid free energies equal)",
+    "quantum_ions": "quantum ions below (T = T_p)",
     "h_ionization": "H half ionized",
     "he_ionization": "He⁺ → He²⁺ half",
 }
@@ -111,7 +112,8 @@ _FIELDS = {
     "relativistic": lambda s: np.log(fermi_momentum_ratio(s.rho, s.ye) / RELATIVISTIC_XF),
     "pairs": lambda s: _log_ratio(s.n_plus, s.n_minus * PAIR_ONSET),
     "coupling": lambda s: _log_ratio(s.Gamma, COUPLING_GAMMA),
-    "crystallization": lambda s: _log_ratio(s.Gamma, CRYSTALLIZATION_GAMMA),
+    "crystallization": lambda s: -np.asarray(s.melt_margin, dtype=float),
+    "quantum_ions": lambda s: _log_ratio(s.T_p, s.T),
     "h_ionization": lambda s: s.ion_H - HALF_IONIZATION,
     "he_ionization": lambda s: s.ion_He2 - HALF_IONIZATION,
 }
@@ -172,6 +174,8 @@ def _active_keys(comp, opts) -> list[str]:
     for key in BOUNDARY_KEYS:
         if key == "pairs" and not opts["pairs"]:
             continue       # no positrons in the model: the line does not exist
+        if key in ("crystallization", "quantum_ions") and not opts["coulomb"]:
+            continue       # ideal classical ions: no phases, no quantum ions in the model
         if key in ("h_ionization", "he_ionization") and opts["ionization"] == "full":
             continue       # fractions are identically 1: no half-ionization line
         if key == "h_ionization" and comp.hydrogen <= 0:
@@ -229,8 +233,9 @@ def boundaries(comp, log_rho=(-10.0, 10.0), log_T=(3.0, 10.0), n: int = 400, *,
     -----
     Lines are zeros of fields of the state: ln(P_rad/P_gas); eta;
     ln x_F with rho Y_e / m_u = (8 pi/3)(m_e c/h)^3 x_F^3 (Y_e the state's
-    free electrons); ln(n_+ / (PAIR_ONSET n_-)); ln(Gamma/1); ln(Gamma/175)
-    (Potekhin & Chabrier 2000, Phys. Rev. E 62, 8554); ion_H - 1/2;
+    free electrons); ln(n_+ / (PAIR_ONSET n_-)); ln(Gamma/1);
+    (Potekhin & Chabrier 2000, Phys. Rev. E 62, 8554) replaced by the melting line: zero of
+    f_liquid - f_crystal (physics.eos.dense_plasma); ln(T_p / T); ion_H - 1/2;
     ion_He2 - 1/2.
 
     Method: every field is evaluated on a ladder of ``ladder`` log T values
@@ -433,7 +438,8 @@ def classify(state) -> np.ndarray:
 FLAG_LABELS: dict[str, str] = {
     "partially_ionized": "partially ionized",
     "strongly_coupled": "strongly coupled ions (Γ > 1)",
-    "crystallized": "crystallized ions (Γ > 175)",
+    "crystallized": "crystallized ions (the crystal's free energy is lower)",
+    "quantum_ions": "quantum ions (T < T_p)",
 }
 
 
@@ -471,7 +477,7 @@ def flags(state, comp=None) -> dict[str, np.ndarray]:
     Returns
     -------
     dict of str -> bool ndarray
-        "partially_ionized", "strongly_coupled", "crystallized".
+        "partially_ionized", "strongly_coupled", "crystallized", "quantum_ions".
 
     Notes
     -----
@@ -480,8 +486,9 @@ def flags(state, comp=None) -> dict[str, np.ndarray]:
       so He⁺ alone also counts), with (lo, hi) = :data:`PARTIAL_IONIZATION`
       = (0.01, 0.99).
     - strongly_coupled: Gamma > COUPLING_GAMMA (1).
-    - crystallized: Gamma > CRYSTALLIZATION_GAMMA (175; Potekhin & Chabrier
-      2000, Phys. Rev. E 62, 8554).
+    - crystallized: the ion crystal has the lower free energy (state.crystallized, from
+      physics.eos.dense_plasma; in the classical limit at Gamma = 175, Potekhin & Chabrier 2000).
+    - quantum_ions: T < T_p, the ion plasma temperature hbar omega_p / k.
     """
     lo, hi = PARTIAL_IONIZATION
     ion_H = np.asarray(state.ion_H, dtype=float)
@@ -492,4 +499,5 @@ def flags(state, comp=None) -> dict[str, np.ndarray]:
     partial = ((lo < ion_H) & (ion_H < hi) & has_H) | ((lo < he) & (he < hi) & has_He)
     return {"partially_ionized": np.asarray(partial),
             "strongly_coupled": Gamma > COUPLING_GAMMA,
-            "crystallized": Gamma > CRYSTALLIZATION_GAMMA}
+            "crystallized": np.asarray(state.crystallized, dtype=float) > 0.5,
+            "quantum_ions": np.asarray(state.T, dtype=float) < np.asarray(state.T_p, dtype=float)}

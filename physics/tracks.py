@@ -21,7 +21,7 @@ from . import constants as const
 from .composition import NUCLIDES, Composition
 from .eos import ThermoState, evaluate, validate_options
 from . import regimes
-from .regimes import (COUPLING_GAMMA, CRYSTALLIZATION_GAMMA, DEGENERACY_ETA, HALF_IONIZATION, PAIR_ONSET,
+from .regimes import (COUPLING_GAMMA, DEGENERACY_ETA, HALF_IONIZATION, PAIR_ONSET,
                       RELATIVISTIC_XF)
 
 __all__ = ["PAIR_ONSET", "RHO_YE_RELATIVISTIC", "BOUNDARY_FIELDS", "CROSSING_COLUMNS", "TrackState",
@@ -44,7 +44,8 @@ BOUNDARY_FIELDS: dict[str, tuple[str, float]] = {
     "relativistic": ("x_F = (rho ye / RHO_YE_RELATIVISTIC)^(1/3)", RELATIVISTIC_XF),
     "pairs": ("n_plus / n_minus", PAIR_ONSET),
     "coupling": ("log10(Gamma)", float(np.log10(COUPLING_GAMMA))),
-    "crystallization": ("Gamma", CRYSTALLIZATION_GAMMA),
+    "crystallization": ("f_liquid - f_crystal per ion over kT (minus melt_margin)", 0.0),
+    "quantum_ions": ("log10(T_p / T)", 0.0),
     "h_ionization": ("ion_H", HALF_IONIZATION),
     "he_ionization": ("ion_He2", HALF_IONIZATION),
 }
@@ -377,7 +378,7 @@ def boundary_fields(state, comp_or_ye=None) -> dict[str, np.ndarray]:
     ----------
     state : ThermoState or TrackState
         Anything with attributes P_rad, P_gas, eta, rho, ye, n_plus, n_minus,
-        Gamma, ion_H, ion_He2.
+        Gamma, ion_H, ion_He2, T, T_p, melt_margin.
     comp_or_ye : Composition, float or array_like, optional
         Electrons per nucleon for the relativity parameter: a Composition
         gives its fully ionized ye = 1/mu_e; a number or array is used as is;
@@ -411,7 +412,8 @@ def boundary_fields(state, comp_or_ye=None) -> dict[str, np.ndarray]:
             "relativistic": np.cbrt(np.asarray(state.rho, dtype=float) * ye / RHO_YE_RELATIVISTIC),
             "pairs": np.asarray(state.n_plus, dtype=float) / np.asarray(state.n_minus, dtype=float),
             "coupling": np.log10(pos(Gamma)),
-            "crystallization": Gamma,
+            "crystallization": -np.asarray(getattr(state, "melt_margin", np.full(Gamma.shape, np.nan)), dtype=float),
+            "quantum_ions": np.log10(pos(np.asarray(state.T_p, dtype=float) / np.asarray(state.T, dtype=float))),
             "h_ionization": np.asarray(state.ion_H, dtype=float),
             "he_ionization": np.asarray(state.ion_He2, dtype=float),
         }

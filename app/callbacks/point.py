@@ -21,7 +21,7 @@ from ..view import ViewError, parse_view, view_from_store
 log = logging.getLogger(__name__)
 
 __all__ = ["SI", "to_si", "point_values", "state_table", "state_grid", "unphysical_warning", "as_json", "as_csv",
-           "pin_point", "register"]
+           "cv_split", "pin_point", "register"]
 
 #: cgs unit -> (SI unit, factor: value_SI = factor * value_cgs).
 SI = {
@@ -140,6 +140,18 @@ def unphysical_warning(values: dict, opts: dict, units: str = "cgs") -> str:
             "not physical: use Fermi–Dirac electrons with Saha ionization, or switch Coulomb off.")
 
 
+def cv_split(values: dict[str, float]) -> str:
+    """c_V in words: its ion, electron and radiation parts as fractions, and the ions' phase."""
+    c = values["c_V"]
+    if not (math.isfinite(c) and c != 0.0):
+        return ""
+    parts = ", ".join(f"{name} {100.0 * values[key] / c:.3g} %" for name, key in
+                      (("ions", "c_V_ion"), ("electrons", "c_V_e"), ("radiation", "c_V_rad")))
+    phase = "crystal" if values.get("crystallized", 0.0) > 0.5 else "liquid or gas"
+    quantum = " (quantum, T < T_p)" if values["T"] < values["T_p"] else ""
+    return f"c_V = {c:.4g} erg g⁻¹ K⁻¹: {parts}; ions: {phase}{quantum}"
+
+
 def pin_point(click, units, store):
     """Callback body: (heading, grid rows, JSON text, CSV text, message)."""
     try:
@@ -158,6 +170,7 @@ def pin_point(click, units, store):
                     else f"ρ = {10 ** log_rho:.4g} g cm⁻³")
         heading = (f"Pinned: log ρ = {log_rho:.3f}, log T = {log_T:.3f}  (log ρ in g cm⁻³; "
                    f"{rho_text}, T = {10 ** log_T:.4g} K)")
+        heading = [heading, html.Br(), cv_split(values)]
         point = {"log_rho": log_rho, "log_T": log_T, "composition": comp.to_dict(), "options": opts}
         return (heading, state_table(table_rows), as_json(point, table_rows, units), as_csv(table_rows),
                 unphysical_warning(values, opts, units))

@@ -13,9 +13,10 @@ import numpy as np
 
 from .. import constants as const
 from ..composition import Composition
-from ..coulomb import coulomb_part, coupling_parameter
+from ..coulomb import coupling_parameter
 from ..matter import matter
 from ..thermo import Part, radiation, response
+from .dense_plasma import dense_parts, mixture_plasma_temperature
 
 __all__ = ["ThermoState", "evaluate", "equality_temperature", "FIELD_UNITS", "FIELD_DESCRIPTIONS",
            "OPTIONS", "MAP_OPTIONS", "EXPERIMENTAL", "validate_options"]
@@ -48,13 +49,16 @@ FIELD_UNITS = {
     "dE_drho": "erg g^-1 / (g cm^-3)", "dS_dT": "erg g^-1 K^-2",
     "ion_H": "", "ion_He1": "", "ion_He2": "", "mean_Z": "",
     "n_minus": "cm^-3", "n_plus": "cm^-3", "h2_fraction": "",
+    "crystallized": "", "T_p": "K", "melt_margin": "", "c_V_ion": "erg g^-1 K^-1", "c_V_e": "erg g^-1 K^-1",
+    "c_V_rad": "erg g^-1 K^-1",
 }
 
 FIELD_DESCRIPTIONS = {
     "rho": "density", "T": "temperature",
     "P": "total pressure", "P_gas": "gas pressure (ions + electrons/positrons + Coulomb)",
     "P_rad": "radiation pressure", "P_ion": "ion pressure", "P_e": "electron + positron pressure",
-    "P_coul": "Coulomb correction to the pressure",
+    "P_coul": "non-ideal correction to the pressure (ion Coulomb liquid or crystal, screening, "
+              "electron exchange-correlation)",
     "E": "specific internal energy", "S": "specific entropy",
     "beta": "P_gas / P", "eta": "electron degeneracy parameter (mu_e - m_e c^2)/kT",
     "ye": "free electrons per nucleon, net of positrons",
@@ -68,6 +72,13 @@ FIELD_DESCRIPTIONS = {
     "ion_He2": "fraction of helium doubly ionized", "mean_Z": "mean free electrons per nucleus",
     "n_minus": "electron number density", "n_plus": "positron number density",
     "h2_fraction": "fraction of hydrogen nuclei bound in H2 (chemical picture only; 0 otherwise)",
+    "crystallized": "1 where the ion crystal has the lower free energy, else 0",
+    "T_p": "ion plasma temperature hbar omega_p / k (ions are quantum below it)",
+    "melt_margin": "free energy of the ion crystal minus the liquid, per ion over kT (< 0: crystal; "
+                   "NaN without Coulomb terms)",
+    "c_V_ion": "ion part of c_V (ideal ions + liquid or lattice + screening)",
+    "c_V_e": "electron part of c_V (electrons, positrons, ionization, exchange-correlation)",
+    "c_V_rad": "radiation part of c_V",
 }
 
 
@@ -111,6 +122,12 @@ class ThermoState:
     n_minus: np.ndarray
     n_plus: np.ndarray
     h2_fraction: np.ndarray
+    crystallized: np.ndarray
+    T_p: np.ndarray
+    melt_margin: np.ndarray
+    c_V_ion: np.ndarray
+    c_V_e: np.ndarray
+    c_V_rad: np.ndarray
 
     def as_dict(self) -> dict[str, np.ndarray]:
         return {f.name: getattr(self, f.name) for f in fields(self)}
@@ -194,14 +211,21 @@ def evaluate(rho, T, comp: Composition, **options) -> ThermoState:
     Gamma_e, Gamma = coupling_parameter(rho, T, comp.X, comp.A, comp.Z)
     gas_part = gas.part
     P_coul = np.zeros_like(rho)
+    crystallized = np.zeros_like(rho)
+    melt_margin = np.full_like(rho, np.nan)
+    N_nuc = float(np.sum(comp.X / (comp.A * const.m_u)))
+    c_V_ion = 1.5 * const.k_B * N_nuc + np.zeros_like(rho)
     if opts["coulomb"]:
-        # Our own rule (see the module docstring): the fully ionized OCP correction, scaled by the
-        # square of the ionized fraction so it fades out as matter recombines; the scale is held
-        # fixed in the derivatives.
-        ionized = gas.n_net / gas.n_full
-        coul = coulomb_part(rho, T, comp.X, comp.A, comp.Z, scale=np.clip(ionized, 0.0, 1.0) ** 2)
-        gas_part = gas_part + coul
-        P_coul = coul.P
+        # Dense-plasma terms of fully ionized matter (physics.eos.dense_plasma). Where matter is not fully
+        # ionized they are scaled by the square of the ionized fraction, held fixed in the derivatives (our
+        # interim rule until the chemical-picture free energy carries them per species).
+        ionized = np.clip(gas.n_net / gas.n_full, 0.0, 1.0)
+        ion_p, ele_p, crystal, melt_margin = dense_parts(rho, T, comp.X, comp.A, comp.Z, scale=ionized**2)
+        gas_part = gas_part + ion_p + ele_p
+        P_coul = ion_p.P + ele_p.P
+        crystallized = crystal.astype(float)
+        c_V_ion = c_V_ion + ion_p.E_T
+    T_p = _plasma_temperature(rho, T, comp)
     total = gas_part + rad
     resp = response(total, rho, T)
     return ThermoState(
@@ -209,7 +233,16 @@ def evaluate(rho, T, comp: Composition, **options) -> ThermoState:
         P_coul=P_coul, E=total.E, S=total.S, beta=gas_part.P / total.P, eta=gas.eta,
         ye=gas.n_net * const.m_u / rho, Gamma=Gamma, dP_drho=total.P_rho, dP_dT=total.P_T,
         dE_drho=total.E_rho, dS_dT=total.S_T, ion_H=gas.ion_H, ion_He1=gas.ion_He1, ion_He2=gas.ion_He2,
-        mean_Z=gas.mean_Z, n_minus=gas.n_minus, n_plus=gas.n_plus, h2_fraction=np.zeros_like(rho), **resp)
+        mean_Z=gas.mean_Z, n_minus=gas.n_minus, n_plus=gas.n_plus, crystallized=crystallized, T_p=T_p,
+        melt_margin=melt_margin, h2_fraction=np.zeros_like(rho),
+        c_V_ion=c_V_ion, c_V_e=resp["c_V"] - c_V_ion - rad.E_T, c_V_rad=rad.E_T, **resp)
+
+
+def _plasma_temperature(rho, T, comp: Composition) -> np.ndarray:
+    """Ion plasma temperature of the fully ionized mixture (linear mixing), K."""
+    keep = comp.Z > 0
+    return mixture_plasma_temperature(rho * float(np.sum(comp.X[keep] * comp.Z[keep] / (comp.A[keep] * const.m_u))),
+                                      comp.Z[keep], comp.A[keep], (comp.X / comp.A)[keep]) + 0.0 * T
 
 
 def _chemical_state(rho, T, comp: Composition, opts: dict, rad: Part) -> ThermoState:
@@ -237,7 +270,9 @@ def _chemical_state(rho, T, comp: Composition, opts: dict, rad: Part) -> ThermoS
         ye=rs(r.n_e) * const.m_u / rho, Gamma=Gamma, dP_drho=total.P_rho, dP_dT=total.P_T,
         dE_drho=total.E_rho, dS_dT=total.S_T, ion_H=rs(r.ion_H), ion_He1=rs(r.ion_He1), ion_He2=rs(r.ion_He2),
         mean_Z=rs(r.n_e) / n_nuc, n_minus=rs(r.n_minus), n_plus=rs(r.n_plus), h2_fraction=rs(r.h2_fraction),
-        **resp)
+        # the chemical picture's ions are the liquid one-component plasma so far: no crystal, no c_V split
+        crystallized=np.zeros_like(rho), T_p=_plasma_temperature(rho, T, comp), melt_margin=np.full_like(rho, np.nan),
+        c_V_ion=np.full_like(rho, np.nan), c_V_e=np.full_like(rho, np.nan), c_V_rad=rad.E_T, **resp)
     for key, value in fields.items():
         if key not in ("rho", "T", "Gamma", "P_rad"):
             fields[key] = np.where(bad, np.nan, value)

@@ -3,7 +3,9 @@
 Prints, from one run on this machine, the time per point of evaluate in units of np.exp on the same
 number of doubles, for ionization="full" and "saha" (electrons="fermi", pairs and Coulomb on), and
 the ratio against a direct per-point electron solve (scipy quad + brentq, scaled from a few points;
-the baseline of bench_electrons.py). Asserts nothing.
+the baseline of bench_electrons.py). With the dense-plasma terms (physics.eos.dense_plasma) it also times
+those terms alone against the previous ion-only OCP term (physics.coulomb.coulomb_part) on the same grid.
+Asserts nothing.
 Run: python tests/benchmarks/bench_eos.py
 """
 
@@ -39,6 +41,18 @@ def main():
         times[ion] = best(lambda: ph.evaluate(rho, T, comp, ionization=ion), 5)
         print(f"evaluate ionization={ion!r:7s}: {times[ion] * 1e3:.1f} ms = "
               f"{times[ion] / t_exp:.0f} exp-units per point (target <= {target})")
+    try:
+        from thermoplane.physics.coulomb import coulomb_part
+        from thermoplane.physics.eos.dense_plasma import dense_parts
+    except ImportError:          # an older tree without the dense-plasma terms
+        dense_parts = None
+    if dense_parts is not None:
+        dense_parts(rho[:2, :2], T[:2, :2], comp.X, comp.A, comp.Z)          # compile / load the numba cache
+        t_new = best(lambda: dense_parts(rho, T, comp.X, comp.A, comp.Z), 5)
+        t_old = best(lambda: coulomb_part(rho, T, comp.X, comp.A, comp.Z), 5)
+        print(f"dense-plasma terms alone ({comp.Z.size} nuclides, traces merged; liquid or solid + screening + xc): "
+              f"{t_new * 1e3:.1f} ms = {t_new / t_exp:.0f} exp-units per point; previous ion-only OCP term: "
+              f"{t_old * 1e3:.1f} ms = {t_old / t_exp:.0f} exp-units; ratio {t_new / t_old:.1f}")
     rng = np.random.default_rng(1)
     n = (rho * 0.85 / const.m_u).ravel()
     idx = rng.choice(n.size, 12, replace=False)

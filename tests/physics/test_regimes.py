@@ -40,7 +40,9 @@ def test_keys_labels_and_order(classical_lines):
     assert keys == [k for k in rg.BOUNDARY_KEYS if k in keys]
     # classical options: no positrons and full ionization, so those lines are absent
     assert "pairs" not in keys and "h_ionization" not in keys and "he_ionization" not in keys
-    for k in ("equality", "degeneracy", "relativistic", "coupling", "crystallization"):
+    # ideal classical ions (coulomb=False): no phases and no quantum ions in the model
+    assert "crystallization" not in keys and "quantum_ions" not in keys
+    for k in ("equality", "degeneracy", "relativistic", "coupling"):
         assert k in keys
         b = classical_lines[k]
         assert b.label == rg.BOUNDARY_LABELS[k] and b.label
@@ -83,7 +85,8 @@ LEVELS = {
     "relativistic": lambda s: np.log(rg.fermi_momentum_ratio(s.rho, s.ye)),
     "pairs": lambda s: np.log(s.n_plus / (0.01 * s.n_minus)),
     "coupling": lambda s: np.log(s.Gamma),
-    "crystallization": lambda s: np.log(s.Gamma / 175.0),
+    "crystallization": lambda s: s.melt_margin,
+    "quantum_ions": lambda s: np.log(s.T_p / s.T),
     "h_ionization": lambda s: s.ion_H - 0.5,
     "he_ionization": lambda s: s.ion_He2 - 0.5,
 }
@@ -145,7 +148,7 @@ def test_coupling_lines_against_independent_gamma(classical_lines):
     # (PHYSICS.md; number-weighted average over nuclei), full ionization
     x_i = SOLAR.X / SOLAR.A / np.sum(SOLAR.X / SOLAR.A)
     z53 = np.sum(x_i * SOLAR.Z ** (5.0 / 3.0))
-    for key, level in (("coupling", 1.0), ("crystallization", 175.0)):
+    for key, level in (("coupling", 1.0),):
         x, y = _points(classical_lines[key])
         n_e = 10.0**x * SOLAR.ye / const.m_u
         a_e = (3.0 / (4.0 * np.pi * n_e)) ** (1.0 / 3.0)
@@ -181,9 +184,26 @@ def test_multiple_crossings_become_pieces(monkeypatch):
 
 
 def test_no_crossing_gives_nan_line():
-    # Gamma = 175 needs T below 1e3 K at low density: restrict the plane so it cannot be reached
-    b = _by_key(rg.boundaries(SOLAR, log_rho=(-10, -8), log_T=(8, 10), n=20, **CLASSICAL))
-    assert b["crystallization"].empty
+    # melting needs T below 1e3 K at low density: restrict the plane so it cannot be reached
+    b = _by_key(rg.boundaries(SOLAR, log_rho=(-10, -8), log_T=(8, 10), n=20))
+    assert b["crystallization"].empty and b["quantum_ions"].empty
+
+
+def test_melting_and_quantum_lines_with_the_default_physics():
+    # carbon: where the ions are classical (T > 10 T_p) the melting line sits near Gamma = 175
+    # (Potekhin & Chabrier 2000: 175.0 for the one-component plasma; screening shifts it by a few per cent)
+    carbon = ph.Composition({"C-12": 1.0})
+    lines = _by_key(rg.boundaries(carbon, n=80))
+    x, y = _points(lines["crystallization"])
+    s = ph.evaluate(10.0**x, 10.0**y, carbon)
+    classical = s.T > 10 * s.T_p
+    assert classical.sum() > 5
+    assert np.all((s.Gamma[classical] > 165) & (s.Gamma[classical] < 190))
+    # T = T_p: T_p = hbar omega_p / k, omega_p^2 = 4 pi n_i Z^2 e^2 / (A m_u) (our own evaluation)
+    x, y = _points(lines["quantum_ions"])
+    n_i = 10.0**x / (carbon.A[0] * const.m_u)
+    Tp = const.hbar * np.sqrt(4 * np.pi * n_i * 36.0 * const.e_esu**2 / (carbon.A[0] * const.m_u)) / const.k_B
+    assert x.size > 10 and np.allclose(10.0**y, Tp, rtol=1e-3)
 
 
 # -- classification ------------------------------------------------------------------------
@@ -245,11 +265,14 @@ def test_flags_thresholds():
     s = SimpleNamespace(ion_H=np.array([0.5, 1.0, 1.0, 0.0, 1.0]),
                         ion_He1=np.array([1.0, 1.0, 1.0, 0.0, 1.0]),
                         ion_He2=np.array([1.0, 0.0, 1.0, 0.0, 1.0]),
-                        Gamma=np.array([0.5, 2.0, 200.0, 0.1, 1.0]))
+                        Gamma=np.array([0.5, 2.0, 200.0, 0.1, 1.0]),
+                        crystallized=np.array([0.0, 0.0, 1.0, 0.0, 0.0]),
+                        T=np.array([1e7, 1e7, 1e5, 1e6, 1e6]), T_p=np.array([1e5, 1e5, 1e6, 1e6, 2e6]))
     f = rg.flags(s)
     assert list(f["partially_ionized"]) == [True, True, False, False, False]
     assert list(f["strongly_coupled"]) == [False, True, True, False, False]
-    assert list(f["crystallized"]) == [False, False, True, False, False]
+    assert list(f["crystallized"]) == [False, False, True, False, False]      # the phase, not Gamma
+    assert list(f["quantum_ions"]) == [False, False, True, False, True]
     # without helium in the composition, the He fractions are not looked at
     f = rg.flags(s, ph.Composition({"H-1": 1.0}))
     assert list(f["partially_ionized"]) == [True, False, False, False, False]

@@ -28,9 +28,10 @@ def test_relativistic_density():
 
 def test_boundary_table():
     assert set(BOUNDARY_FIELDS) == {"equality", "degeneracy", "relativistic", "pairs", "coupling",
-                                    "crystallization", "h_ionization", "he_ionization"}
-    # levels the design fixes (PHYSICS.md; crystallization: Potekhin & Chabrier 2000)
-    assert BOUNDARY_FIELDS["crystallization"][1] == 175.0
+                                    "crystallization", "quantum_ions", "h_ionization", "he_ionization"}
+    # levels: melting where the crystal and liquid free energies are equal; quantum ions at T = T_p
+    assert BOUNDARY_FIELDS["crystallization"][1] == 0.0
+    assert BOUNDARY_FIELDS["quantum_ions"][1] == 0.0
     assert BOUNDARY_FIELDS["relativistic"][1] == 1.0
     assert BOUNDARY_FIELDS["pairs"][1] == PAIR_ONSET
 
@@ -234,7 +235,11 @@ def test_boundary_fields_from_state():
     assert np.allclose(f["equality"], np.log10(s.P_rad / s.P_gas))
     # x_F^3 = rho ye / 9.74e5 (Chandrasekhar 1939)
     assert f["relativistic"][1] ** 3 == pytest.approx(1e6 * SUN.ye / 9.74e5, rel=2e-3)
-    assert np.allclose(f["crystallization"], s.Gamma)
+    # classical options: no Coulomb terms, so no melting margin (NaN); T_p is a property of the ions
+    assert np.all(np.isnan(f["crystallization"]))
+    assert np.allclose(f["quantum_ions"], np.log10(s.T_p / s.T))
+    d = evaluate(np.array([1e8]), np.array([1e6]), SUN)
+    assert np.allclose(boundary_fields(d, SUN)["crystallization"], -d.melt_margin)
     assert np.allclose(boundary_fields(s, 0.5)["relativistic"] ** 3, np.array([1.0, 1e6]) * 0.5 / RHO_YE_RELATIVISTIC)
 
 

@@ -1,0 +1,202 @@
+"""Dense-plasma free energy of a fully ionized ion mixture: liquid or bcc crystal, electron screening, and
+electron exchange-correlation; the phase with the lower free energy wins.
+
+The question this module answers: at free-electron density n_e and temperature T, are the ions a liquid or a
+crystal, and what do Coulomb interactions, quantum ions and the electrons' own exchange-correlation add to
+the free energy?
+
+Interface (every term, and the mixture): inputs (n_e [cm^-3], T [K], Z, A [u]); output the free energy per
+particle over kT and its partials in ln n_e and ln T, (f, f_n, f_T, f_nn, f_nT, f_TT). Ion terms are per ion
+and are excesses over the classical ideal ion gas (Sackur–Tetrode); the exchange-correlation term is per
+electron. Linear mixing: each species i is a one-component plasma at the same n_e (Gamma_i = Gamma_e
+Z_i^(5/3), n_i = n_e / Z_i); the mixture's free energy per ion is sum_i x_i f_i with number fractions x_i.
+
+Melting: the liquid sum and the solid sum (each with its screening) are compared point by point; the lower
+one is returned, so the melting line and its latent heat follow from the free energies. In the classical
+limit the two cross at Gamma = 175.0. The liquid fit, extrapolated far past its range, would fall below the
+lattice again near Gamma ~ 2500 (an artifact of the fit): the liquid is not a candidate where the mean
+coupling sum_i x_i Gamma_i exceeds GAMMA_LIQUID_MAX = 1000 (the solid is lower there by more than 1 kT per ion).
+Likewise the lattice is no candidate below GAMMA_SOLID_MIN = 100: there the harmonic crystal's entropy and
+the anharmonic series (an expansion in 1/Gamma) lose their meaning and would undercut the liquid at weak
+coupling (the liquid is lower by 0.3 kT per ion or more at Gamma = 100, so no jump is introduced).
+"""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+from numba import njit
+
+from .. import constants as const
+from ..thermo import Part
+from . import jet
+from .electron_xc import electron_xc
+from .ion_liquid import liquid_ion
+from .ion_solid import solid_ion
+from .plasma_parameters import coupling
+from .screening import screening_ion
+
+__all__ = ["mixture", "mixture_chosen", "mixture_free_energy", "merge_trace_species", "dense_parts", "GAMMA_LIQUID_MAX", "GAMMA_SOLID_MIN", "mixture_plasma_temperature"]
+
+GAMMA_LIQUID_MAX = 1000.0
+GAMMA_SOLID_MIN = 100.0
+
+
+@njit(cache=True)
+def _mixture(n_e, T, Z, A, x, both):
+    g_mean = 0.0
+    for i in range(Z.size):
+        if x[i] > 0.0:
+            g_mean += x[i] * coupling(n_e, T, Z[i])[0]
+    need_solid = both or g_mean >= GAMMA_SOLID_MIN
+    need_liquid = both or g_mean <= GAMMA_LIQUID_MAX
+    nan = math.nan
+    liq = jet.const(0.0) if need_liquid else jet.const(nan)
+    sol = jet.const(0.0) if need_solid else jet.const(nan)
+    for i in range(Z.size):
+        if x[i] <= 0.0:
+            continue
+        sc = screening_ion(n_e, T, Z[i], A[i])
+        if need_liquid:
+            liq = jet.add(liq, jet.scale(jet.add(liquid_ion(n_e, T, Z[i], A[i]), sc), x[i]))
+        if need_solid:
+            sol = jet.add(sol, jet.scale(jet.add(solid_ion(n_e, T, Z[i], A[i]), sc), x[i]))
+    # the margin f_solid - f_liquid, kept away from zero where a phase is no candidate, so that its sign is
+    # the phase and its zero the melting line (no spurious zeros at the candidacy limits)
+    if g_mean < GAMMA_SOLID_MIN:
+        margin = max(sol[0] - liq[0], 0.1) if need_solid else 1.0
+    elif g_mean > GAMMA_LIQUID_MAX:
+        margin = min(sol[0] - liq[0], -0.1) if need_liquid else -1.0
+    else:
+        margin = sol[0] - liq[0]
+    ion = sol if margin < 0.0 else liq
+    return liq, sol, ion, margin, electron_xc(n_e, T, 1.0, 1.0)
+
+
+@njit(cache=True)
+def mixture(n_e, T, Z, A, x):
+    """Liquid and solid sums, the chosen phase, and the electron exchange-correlation at one point.
+
+    Parameters: n_e (cm^-3), T (K), arrays Z, A, x (number fractions of ions, summing to 1).
+    Returns (liquid, solid, ion, margin, electron): jets per ion (liquid, solid, chosen ion part, each
+    with screening), margin = f_solid - f_liquid per ion (< 0 where the crystal wins; pushed to at least
+    0.1 in size where one phase is no candidate), and the exchange-correlation jet per electron.
+    """
+    return _mixture(n_e, T, Z, A, x, True)
+
+
+@njit(cache=True)
+def mixture_chosen(n_e, T, Z, A, x):
+    """As :func:`mixture`, but a phase that is no candidate (mean Gamma < GAMMA_SOLID_MIN for the crystal,
+    > GAMMA_LIQUID_MAX for the liquid) is not computed: its jet is NaN and the margin is +1 or -1 there.
+    The equation of state uses this (half the cost over most of the plane)."""
+    return _mixture(n_e, T, Z, A, x, False)
+
+
+@njit(cache=True)
+def _many(n_e, T, Z, A, x, liq, sol, ion, flag, ele, both):
+    for i in range(n_e.size):
+        a, b, c, d, e = _mixture(n_e[i], T[i], Z, A, x, both)
+        liq[:, i] = a
+        sol[:, i] = b
+        ion[:, i] = c
+        flag[i] = d
+        ele[:, i] = e
+
+
+def mixture_free_energy(n_e, T, Z, A, x, both=True):
+    """Vectorised :func:`mixture` over arrays n_e, T (broadcast); Z, A, x 1-d arrays of the species.
+
+    Returns a dict of arrays: ``liquid``, ``solid``, ``ion`` (each shape (6, ...), per ion, screening
+    included), ``crystallized`` (bool), ``electron`` (shape (6, ...), per electron), ``mean_Z``.
+    """
+    n_e, T = np.broadcast_arrays(np.asarray(n_e, float), np.asarray(T, float))
+    shape = n_e.shape
+    Z = np.asarray(Z, float).ravel()
+    A = np.asarray(A, float).ravel()
+    x = np.asarray(x, float).ravel()
+    if not (Z.size == A.size == x.size) or np.any(Z <= 0) or np.any(A <= 0) or np.any(x < 0):
+        raise ValueError("Z, A, x must be arrays of one length with Z > 0, A > 0, x >= 0")
+    x = x / x.sum()
+    n = n_e.size
+    liq, sol, ion, ele = (np.empty((6, n)) for _ in range(4))
+    flag = np.empty(n)
+    _many(np.ascontiguousarray(n_e).ravel(), np.ascontiguousarray(T).ravel(), Z, A, x, liq, sol, ion, flag, ele,
+          bool(both))
+    r = lambda a: a.reshape(a.shape[:-1] + shape)  # noqa: E731
+    return dict(liquid=r(liq), solid=r(sol), ion=r(ion), crystallized=r(flag) < 0.0, margin=r(flag),
+                electron=r(ele), mean_Z=float(np.sum(x * Z)))
+
+
+def mixture_plasma_temperature(n_e, Z, A, x):
+    """Ion plasma temperature of the mixture, T_p = hbar omega_p / k, omega_p^2 = sum_i 4 pi n_i Z_i^2 e^2 / m_i."""
+    Z = np.asarray(Z, float)
+    A = np.asarray(A, float)
+    x = np.asarray(x, float) / np.sum(x)
+    w = np.sum(x * Z**2 / A) / np.sum(x * Z)
+    return const.hbar / const.k_B * np.sqrt(4.0 * math.pi * np.asarray(n_e, float) * const.e_esu**2 * w / const.m_u)
+
+
+def _part(N, rho, T, g) -> Part:
+    """P, E, S per gram and partials from g = F / (N k T) per particle (N particles per gram, fixed)."""
+    k = const.k_B
+    f, fn, fT, fnn, fnT, fTT = g
+    return Part(P=rho * N * k * T * fn, E=-N * k * T * fT, S=-N * k * (f + fT),
+                P_rho=N * k * T * (fn + fnn), P_T=rho * N * k * (fn + fnT),
+                E_rho=-N * k * T * fnT / rho, E_T=-N * k * (fT + fTT),
+                S_rho=-N * k * (fn + fnT) / rho, S_T=-N * k * (fT + fTT) / T)
+
+
+#: species below this number fraction are merged into one mean species in :func:`dense_parts`
+TRACE_FRACTION = 0.01
+
+
+def merge_trace_species(Z, A, x, threshold=TRACE_FRACTION):
+    """Merge the species with number fraction < ``threshold`` into one mean species (for speed).
+
+    The mean species keeps the traces' total fraction, sum x Z^(5/3) (so the Madelung and OCP terms, linear
+    in Gamma, are unchanged) and sum x A. Returns (Z, A, x, offset): ``offset`` is the constant that
+    restores the ideal-ion reference, sum_i x_i [ln Z_i + 1.5 ln A_i] - x_m [ln Z_m + 1.5 ln A_m], to add to
+    f (it shifts S by a constant only, so the T -> 0 entropy stays exact). An approximation of ours: the
+    Coulomb terms of the traces (a fraction ~ their number fraction of the whole) change at the level of the
+    spread of their Z.
+    """
+    Z, A, x = (np.asarray(v, float) for v in (Z, A, x))
+    trace = x < threshold
+    if trace.sum() < 2:
+        return Z, A, x, 0.0
+    xm = x[trace].sum()
+    Zm = (np.sum(x[trace] * Z[trace] ** (5.0 / 3.0)) / xm) ** 0.6
+    Am = np.sum(x[trace] * A[trace]) / xm
+    offset = (np.sum(x[trace] * (np.log(Z[trace]) + 1.5 * np.log(A[trace])))
+              - xm * (np.log(Zm) + 1.5 * np.log(Am)))
+    return (np.append(Z[~trace], Zm), np.append(A[~trace], Am), np.append(x[~trace], xm), float(offset))
+
+
+def dense_parts(rho, T, X, A, Z, scale=1.0):
+    """The dense-plasma terms of fully ionized matter as two :class:`Part` s (ions, electrons) per gram.
+
+    n_e = rho sum_i X_i Z_i / (A_i m_u) (fully ionized), so d/d ln rho = d/d ln n_e at fixed composition.
+    Trace species (number fraction < 1 %) are merged (:func:`merge_trace_species`).
+    ``scale`` multiplies both parts and is held fixed in the derivatives (the equation of state passes the
+    square of the ionized fraction where matter is not fully ionized).
+
+    Returns (ion_part, electron_part, crystallized, margin): margin = f_solid - f_liquid per ion over kT.
+    """
+    per_mass = np.asarray(X, float) / (np.asarray(A, float) * const.m_u)
+    Z = np.asarray(Z, float)
+    keep = (per_mass > 0) & (Z > 0)
+    N_ion = float(np.sum(per_mass[keep]))
+    N_e = float(np.sum(per_mass[keep] * Z[keep]))
+    n_e = rho * N_e
+    Zs, As, xs, offset = merge_trace_species(Z[keep], np.asarray(A, float)[keep], per_mass[keep] / N_ion)
+    res = mixture_free_energy(n_e, T, Zs, As, xs, both=False)
+    g_ion = res["ion"].copy()
+    g_ion[0] += offset
+    ion = _part(N_ion, rho, T, g_ion)
+    ele = _part(N_e, rho, T, res["electron"])
+    if not np.all(np.asarray(scale) == 1.0):
+        ion = Part(*(getattr(ion, f) * scale for f in Part.__dataclass_fields__))
+        ele = Part(*(getattr(ele, f) * scale for f in Part.__dataclass_fields__))
+    return ion, ele, res["crystallized"], res["margin"]

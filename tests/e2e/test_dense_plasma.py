@@ -1,0 +1,37 @@
+"""The dense-plasma lines in a real browser: melting and quantum ions on the map, the c_V split on a pin."""
+
+from __future__ import annotations
+
+import pytest
+
+from tests.conftest import screenshot
+from tests.e2e.plotly_js import trace_values
+
+pytestmark = pytest.mark.e2e
+
+# full physics (Coulomb terms on), carbon-oxygen, a coarse grid to keep the test quick
+VIEW = "?mix=C-12%3D0.5%2CO-16%3D0.5&mix_on=1&resolution=120"
+TIMEOUT = 180000
+MELT_X = trace_values("plane-graph", "crystallization", "x")
+QUANTUM_X = trace_values("plane-graph", "quantum_ions", "x")
+LABELS = """() => { const gd = document.querySelector('#plane-graph .js-plotly-plot');
+  if (!gd || !gd.layout || !gd.layout.annotations) return [];
+  return gd.layout.annotations.map(a => a.text || ''); }"""
+
+
+def test_melting_and_quantum_ion_lines_and_cv_split(server_url, page):
+    page.goto(server_url + VIEW)
+    page.wait_for_function(f"() => {{ const x = ({MELT_X})(); return x && x.length > 10; }}", timeout=TIMEOUT)
+    page.wait_for_function(f"() => {{ const x = ({QUANTUM_X})(); return x && x.length > 10; }}", timeout=TIMEOUT)
+    labels = " | ".join(page.evaluate(LABELS))
+    assert "melting" in labels and "quantum ions" in labels
+    screenshot(page, "dense_plasma_lines")
+    # pin a point in the cold, dense corner: a crystal of quantum ions
+    box = page.locator("#plane-graph .nsewdrag").first.bounding_box()
+    page.mouse.click(box["x"] + 0.85 * box["width"], box["y"] + 0.85 * box["height"])
+    page.wait_for_selector("#point-state-table", timeout=TIMEOUT)
+    heading = page.inner_text("#point-heading")
+    assert "c_V" in heading and "ions" in heading and "electrons" in heading and "crystal" in heading
+    assert "c_V_ion" in page.inner_text("#point-state-table")
+    screenshot(page, "dense_plasma_pinned")
+    assert page.console_errors == []
