@@ -264,9 +264,10 @@ def test_no_click_yet():
 def test_pinned_point_heading_follows_the_units():
     click = {"points": [{"x": 2.0, "y": 6.0}]}
     heading, *_ = point.pin_point(click, "si", store())
-    assert "ρ = 1e+05 kg m⁻³" in heading and "g cm⁻³;" in heading       # log rho stays in g cm^-3, said so
+    text = heading[0]                        # the heading line; then a line break and the c_V split
+    assert "ρ = 1e+05 kg m⁻³" in text and "g cm⁻³;" in text       # log rho stays in g cm^-3, said so
     heading, *_ = point.pin_point(click, "cgs", store())
-    assert "ρ = 100 g cm⁻³" in heading
+    assert "ρ = 100 g cm⁻³" in heading[0] and heading[2].startswith("c_V = ")
 
 
 def test_pinned_point_without_physical_value_is_warned():
