@@ -116,13 +116,11 @@ def _fmt_age(value) -> str:
 
 
 def cmd_track(args) -> int:
-    from . import tracks, upload
+    from . import localfiles, tracks, upload
     comp = _composition(args)
     opts = _physics_options(args)
-    max_bytes = int(args.max_mb * 1024 * 1024)
-    with open(args.file, "rb") as fh:
-        data = fh.read(max_bytes + 1)             # never read more than the limit (plus one byte to tell)
-    df = upload.read_table(data, args.file, max_bytes=max_bytes)
+    max_bytes = None if args.max_mb is None else int(args.max_mb * 1024 * 1024)
+    df = localfiles.read_local(args.file, max_bytes=max_bytes)   # in chunks, no size limit by default
     mapping = upload.detect_columns(df)
     if args.rho_col is not None:
         mapping.rho_col = args.rho_col
@@ -212,8 +210,9 @@ def build_parser() -> argparse.ArgumentParser:
     _add_physics(p)
     p.add_argument("-o", "--output", help="write the table with the computed columns to this CSV file")
     p.add_argument("--json", action="store_true", help="print the rows, bad rows and crossings as JSON")
-    p.add_argument("--max-mb", dest="max_mb", type=_positive_float, default=25.0,
-                   help="largest accepted file in MB, raw or decompressed (default 25)")
+    p.add_argument("--max-mb", dest="max_mb", type=_positive_float, default=None,
+                   help="refuse files larger than this in MB, raw or decompressed (default: no limit; "
+                        "local files are read in chunks)")
     p.set_defaults(func=cmd_track)
 
     p = sub.add_parser("map", help="write the map as a standalone interactive HTML figure",
