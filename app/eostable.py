@@ -139,7 +139,7 @@ def build(comp: Composition, log_rho, log_T, fields=None, chunk: int = DEFAULT_C
     ys = da.from_array(y, chunks=chunk)[None, :]
     stacked = da.map_blocks(_block, xs, ys, comp=comp, fields=tuple(names), physics=options,
                             chunks=((len(names),),) + xs.chunks[:1] + ys.chunks[1:], new_axis=0,
-                            dtype=float, name="thermoplane-eos")
+                            dtype=float, meta=np.empty((0, 0, 0)), name="thermoplane-eos")
     data_vars = {name: (("log_rho", "log_T"), stacked[i],
                         {"units": FIELD_UNITS[name], "description": FIELD_DESCRIPTIONS[name]})
                  for i, name in enumerate(names)}
