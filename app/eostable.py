@@ -36,6 +36,7 @@ FIELDS = tuple(ThermoState.__dataclass_fields__)
 DEFAULT_CHUNK = 256
 #: Most points along one axis (a 100 000 x 100 000 table would be 2.5 PB).
 MAX_POINTS_PER_AXIS = 100_000
+_SOURCE = "thermoplane_chunks"
 _FORMATS = {".nc": "netcdf", ".nc4": "netcdf", ".zarr": "zarr"}
 
 
@@ -149,7 +150,10 @@ def build(comp: Composition, log_rho, log_T, fields=None, chunk: int = DEFAULT_C
              "composition": composition_text(comp), "mu": comp.mu, "mu_e": comp.mu_e,
              **{f"physics_{k}": _attr(v) for k, v in options.items()},
              "physics": json.dumps(options), "thermoplane_version": version()}
-    return xr.Dataset(data_vars, coords=coords, attrs=attrs)
+    ds = xr.Dataset(data_vars, coords=coords, attrs=attrs)
+    # write() computes whole chunks of ``stacked``; the variable names tell it whether ds is still this table
+    ds.encoding[_SOURCE] = {"array": stacked, "fields": names, "keys": {n: ds[n].data.name for n in names}}
+    return ds
 
 
 def output_format(path: str) -> str:
@@ -172,15 +176,63 @@ def _writable(path: str, fmt: str) -> None:
             raise ValueError(f"{path!r} exists and is not a Zarr store; choose another name")
 
 
-def write(ds, path, workers: int | None = None, scheduler: str | None = None, progress: bool = False) -> str:
-    """Compute the table chunk by chunk on Dask and write it; returns the format written.
+class _NetCDFTarget:
+    """A NetCDF file being filled chunk by chunk: coordinates and attributes by xarray, variables by h5netcdf."""
 
-    NetCDF goes through xarray's h5netcdf engine, Zarr through xarray's Zarr
-    writer (format 2, consolidated metadata). The file is first written under
-    a hidden name beside ``path`` and renamed when complete, so a failed or
-    interrupted run never leaves a half table under the requested name. With
-    ``scheduler``, the workers write the file: ``path`` must be on a
-    filesystem they share with this machine.
+    def __init__(self, ds, path: str, chunks: tuple[int, int]):
+        import h5netcdf
+        import xarray as xr
+
+        xr.Dataset(coords=ds.coords, attrs=ds.attrs).to_netcdf(path, engine="h5netcdf")
+        with h5netcdf.File(path, "a") as f:
+            for name, var in ds.data_vars.items():
+                v = f.create_variable(name, var.dims, "f8", chunks=chunks, fillvalue=np.nan)
+                v.attrs.update(var.attrs)
+        # the chunks go in through h5py, the library under h5netcdf (a tenth of the cost per write)
+        import h5py
+        self.file = h5py.File(path, "r+")
+        self.vars = [self.file[name] for name in ds.data_vars]
+
+    def put(self, region, block: np.ndarray) -> None:
+        for v, values in zip(self.vars, block):
+            v[region] = values
+
+    def close(self) -> None:
+        self.file.close()
+
+
+class _ZarrTarget:
+    """A Zarr store laid out by xarray (metadata and coordinates), its chunks filled by zarr."""
+
+    def __init__(self, ds, path: str, chunks: tuple[int, int]):
+        import zarr
+
+        ds.to_zarr(path, mode="w", zarr_format=2, consolidated=True, compute=False)
+        group = zarr.open_group(path, mode="r+", zarr_format=2)
+        self.vars = [group[name] for name in ds.data_vars]
+
+    def put(self, region, block: np.ndarray) -> None:
+        for v, values in zip(self.vars, block):
+            v[region] = values
+
+    def close(self) -> None:
+        pass
+
+
+def write(ds, path, workers: int | None = None, scheduler: str | None = None, progress: bool = False) -> str:
+    """Compute the table chunk by chunk on Dask and write it here; returns the format written.
+
+    Every chunk of the table is one Dask computation (the map_blocks task that
+    evaluates all fields of the chunk, and the slices of it); at most two
+    chunks per worker thread are in flight, and each is written to the file
+    by this process as soon as it arrives, so memory holds a few chunks
+    whatever the size of the table. NetCDF: coordinates and attributes by
+    xarray's h5netcdf engine, the variables (chunked like the table, NaN
+    fill) filled through h5netcdf. Zarr: laid out by xarray (format 2,
+    consolidated metadata), chunks filled through zarr. The file is written
+    under a hidden name beside ``path`` and renamed when complete, so a
+    failed or interrupted run never leaves a half table under the requested
+    name. With ``scheduler`` the workers compute and this machine writes.
 
     Raises
     ------
@@ -188,25 +240,51 @@ def write(ds, path, workers: int | None = None, scheduler: str | None = None, pr
         A name not ending in .nc or .zarr, a missing directory, an existing
         non-Zarr directory, an unreachable scheduler.
     """
+    import dask
+    from distributed import wait
+
     path = os.path.abspath(os.fspath(path).rstrip("/" + os.sep))
     fmt = output_format(path)
     _writable(path, fmt)
     folder, name = os.path.split(path)
     tmp = os.path.join(folder, f".{name}.partial-{os.getpid()}")
-    chunks = tuple(c[0] for c in ds[next(iter(ds.data_vars))].chunks)
+    arrays = [var.data for var in ds.data_vars.values()]
+    row_chunks, col_chunks = arrays[0].chunks
+    source = ds.encoding.get(_SOURCE)
+    if not (source and source["fields"] == list(ds.data_vars) and source["array"].chunks[1:] == arrays[0].chunks
+            and all(ds[n].data.name == source["keys"][n] for n in ds.data_vars)):
+        source = None                 # a Dataset changed since build(): compute its variables' own chunks
+    starts_r, starts_c = np.cumsum((0,) + row_chunks), np.cumsum((0,) + col_chunks)
+    blocks = [(i, j) for i in range(len(row_chunks)) for j in range(len(col_chunks))]
     with cluster.client(workers, scheduler) as c:
+        in_flight = max(2, 2 * sum(c.nthreads().values()))
+        target = None
         try:
-            if fmt == "netcdf":
-                encoding = {v: {"chunksizes": chunks} for v in ds.data_vars}
-                delayed = ds.to_netcdf(tmp, engine="h5netcdf", encoding=encoding, compute=False)
-            else:
-                delayed = ds.to_zarr(tmp, mode="w", zarr_format=2, consolidated=True, compute=False)
-            future = c.compute(delayed)
+            target = (_NetCDFTarget if fmt == "netcdf" else _ZarrTarget)(ds, tmp, (row_chunks[0], col_chunks[0]))
+            pending, done, todo = {}, 0, list(reversed(blocks))
             if progress:
-                from distributed import progress as dask_progress
-                dask_progress(future)
-            future.result()
+                cluster.progress_line(0, len(blocks), "chunks")
+            while todo or pending:
+                while todo and len(pending) < in_flight:
+                    i, j = todo.pop()
+                    if source is not None:    # one map_blocks chunk: every field from one evaluate()
+                        fields = source["array"].blocks[:, i, j]
+                    else:
+                        fields = dask.delayed(np.stack)([a.blocks[i, j] for a in arrays])
+                    pending[c.compute(fields)] = (i, j)
+                finished = wait(list(pending), return_when="FIRST_COMPLETED").done
+                for fut in finished:
+                    i, j = pending.pop(fut)
+                    region = (slice(starts_r[i], starts_r[i + 1]), slice(starts_c[j], starts_c[j + 1]))
+                    target.put(region, fut.result())
+                    fut.release()
+                    done += 1
+                    if progress:
+                        cluster.progress_line(done, len(blocks), "chunks")
+            target.close()
         except BaseException:
+            if target is not None:
+                target.close()
             _remove(tmp)
             raise
     if os.path.isdir(path):

@@ -7,7 +7,6 @@ import json
 import tracemalloc
 from importlib import metadata
 
-import dask
 import numpy as np
 import pytest
 import xarray as xr
@@ -74,7 +73,7 @@ def test_zarr_on_a_local_cluster_equals_evaluate(tmp_path):
     assert xr.open_zarr(out)["P"].shape == (2, 1)
 
 
-def test_one_evaluate_per_chunk_and_fields_are_slices_of_it(monkeypatch):
+def test_one_evaluate_per_chunk_and_fields_are_slices_of_it(monkeypatch, tmp_path):
     calls = []
     real = eostable.evaluate
 
@@ -86,8 +85,12 @@ def test_one_evaluate_per_chunk_and_fields_are_slices_of_it(monkeypatch):
     comp = ph.Composition.from_xyz(0.7, 0.28, 0.02)
     ds = eostable.build(comp, np.linspace(-4, 4, 25), np.linspace(4, 8, 12), chunk=10, **CLASSICAL)
     assert calls == []                                   # lazy until computed
+    expected = sorted([(a, b) for a in (10, 10, 5) for b in (10, 2)])       # 3 x 2 chunks, once each
     ds.compute(scheduler="synchronous")
-    assert sorted(calls) == sorted([(a, b) for a in (10, 10, 5) for b in (10, 2)])   # 3 x 2 chunks, once each
+    assert sorted(calls) == expected
+    calls.clear()
+    eostable.write(ds, tmp_path / "t.nc", workers=1)     # the writer too: all 32 fields from one call per chunk
+    assert sorted(calls) == expected
 
 
 def test_memory_stays_a_few_chunks_while_writing(tmp_path):
@@ -99,8 +102,7 @@ def test_memory_stays_a_few_chunks_while_writing(tmp_path):
     block = chunk * chunk * len(eostable.FIELDS) * 8
     tracemalloc.start()
     try:
-        with dask.config.set(scheduler="synchronous"):
-            ds.to_netcdf(tmp_path / "big.nc", engine="h5netcdf")
+        eostable.write(ds, tmp_path / "big.nc", workers=1)       # the worker thread runs in this process
         peak = tracemalloc.get_traced_memory()[1]
     finally:
         tracemalloc.stop()
@@ -152,3 +154,14 @@ def test_cli_user_errors_one_line_exit_2(tmp_path, capsys, monkeypatch, argv, fr
     assert len(err.splitlines()) == 1 and "Traceback" not in err
     assert (tmp_path / "plain_dir.zarr" / "notes.txt").read_text() == "mine"      # nothing of the user's lost
     assert not list(tmp_path.glob("*.nc")) and not list(tmp_path.glob(".*partial*"))
+
+
+def test_a_dataset_changed_after_build_writes_its_own_values(tmp_path):
+    comp = ph.Composition.from_xyz(0.7, 0.28, 0.02)
+    ds = eostable.build(comp, np.linspace(-4, 4, 21), np.linspace(4, 8, 9), chunk=8, **CLASSICAL)
+    part = ds[["P", "S"]].isel(log_rho=slice(3, 17))
+    eostable.write(part, tmp_path / "part.nc", workers=1)
+    with xr.open_dataset(tmp_path / "part.nc", engine="h5netcdf") as back:
+        assert sorted(back.data_vars) == ["P", "S"] and back["P"].shape == (14, 9)
+        np.testing.assert_array_equal(back["P"].values, part["P"].values)
+        np.testing.assert_array_equal(back["log_rho"].values, np.linspace(-4, 4, 21)[3:17])
