@@ -17,6 +17,7 @@ from __future__ import annotations
 import glob
 import math
 import os
+import uuid
 from dataclasses import dataclass, field
 
 import pandas as pd
@@ -194,8 +195,9 @@ def run(paths, job: Job, workers: int | None = None, scheduler: str | None = Non
     results: list[dict | None] = [None] * len(paths)
     with cluster.client(workers, scheduler) as c:
         [job_future] = c.scatter([job], broadcast=True)
-        futures = [c.submit(process_file, p, job_future, key=f"thermoplane-file-{i}-{os.path.basename(p)}",
-                            pure=False, retries=0) for i, p in enumerate(paths)]
+        run_id = uuid.uuid4().hex[:12]      # keys unique on a scheduler that other runs share
+        futures = [c.submit(process_file, p, job_future, key=f"thermoplane-file-{run_id}-{i}", pure=False,
+                            retries=0) for i, p in enumerate(paths)]
         index = {f.key: i for i, f in enumerate(futures)}
         if progress:
             cluster.progress_line(0, len(paths), "files")

@@ -234,7 +234,7 @@ def cmd_table(args) -> int:
     eostable.output_format(args.output)
     ds = eostable.build(comp, log_rho, log_T, fields=args.fields, chunk=args.chunk, **_physics_options(args))
     fmt = eostable.write(ds, args.output, workers=args.workers, scheduler=args.scheduler,
-                         progress=sys.stdout.isatty())
+                         progress=sys.stderr.isatty())
     print(f"wrote {args.output} ({fmt}, {len(log_rho)} x {len(log_T)} points, {len(ds.data_vars)} fields)",
           file=sys.stderr)
     return 0

@@ -70,8 +70,10 @@ def client(workers: int | None = None, scheduler: str | None = None):
     n = default_workers() if workers is None else int(workers)
     if n < 1:
         raise ValueError(f"--workers must be at least 1, got {n}")
-    cluster = LocalCluster(n_workers=n, threads_per_worker=1, processes=n > 1, dashboard_address=None,
-                           silence_logs=quiet)
+    # loopback only, and Dask's HTTP endpoints on a free port (no clash with a cluster already on 8787)
+    where = {"host": "127.0.0.1"} if n > 1 else {}           # in-process workers talk over inproc://
+    cluster = LocalCluster(n_workers=n, threads_per_worker=1, processes=n > 1, dashboard_address="127.0.0.1:0",
+                           silence_logs=quiet, **where)
     try:
         c = Client(cluster)
         try:

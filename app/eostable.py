@@ -20,6 +20,7 @@ import json
 import math
 import os
 import shutil
+import uuid
 from importlib import metadata
 
 import numpy as np
@@ -140,7 +141,7 @@ def build(comp: Composition, log_rho, log_T, fields=None, chunk: int = DEFAULT_C
     ys = da.from_array(y, chunks=chunk)[None, :]
     stacked = da.map_blocks(_block, xs, ys, comp=comp, fields=tuple(names), physics=options,
                             chunks=((len(names),),) + xs.chunks[:1] + ys.chunks[1:], new_axis=0,
-                            dtype=float, meta=np.empty((0, 0, 0)), name="thermoplane-eos")
+                            dtype=float, meta=np.empty((0, 0, 0)), name=f"thermoplane-eos-{uuid.uuid4().hex}")
     data_vars = {name: (("log_rho", "log_T"), stacked[i],
                         {"units": FIELD_UNITS[name], "description": FIELD_DESCRIPTIONS[name]})
                  for i, name in enumerate(names)}

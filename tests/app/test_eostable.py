@@ -165,3 +165,13 @@ def test_a_dataset_changed_after_build_writes_its_own_values(tmp_path):
         assert sorted(back.data_vars) == ["P", "S"] and back["P"].shape == (14, 9)
         np.testing.assert_array_equal(back["P"].values, part["P"].values)
         np.testing.assert_array_equal(back["log_rho"].values, np.linspace(-4, 4, 21)[3:17])
+
+
+def test_two_tables_in_one_dask_session_do_not_share_chunks():
+    from thermoplane.app import cluster
+    grid = (np.linspace(0, 2, 5), np.linspace(6, 7, 4))
+    hydrogen = eostable.build(ph.parse_mix("H-1=1"), *grid, fields=["P"], **CLASSICAL)
+    helium = eostable.build(ph.parse_mix("He-4=1"), *grid, fields=["P"], **CLASSICAL)
+    with cluster.client(1):
+        p_h, p_he = hydrogen["P"].values, helium["P"].values
+    assert np.all(p_h > 1.5 * p_he)          # mu = 1/2 against 4/3: the gas pressures differ

@@ -3,12 +3,13 @@
 from __future__ import annotations
 
 import gzip
+import json
 
 import numpy as np
 import pandas as pd
 import pytest
 
-from thermoplane.app import localfiles
+from thermoplane.app import cli, localfiles
 from thermoplane.app.upload import MAX_BYTES, TableError, read_table
 
 CHUNK = 1024          # the smallest block: every file below spans several
@@ -83,7 +84,7 @@ def test_errors_name_the_line_of_the_whole_file(tmp_path):
     assert str(chunked.value) == str(whole.value)
 
 
-def test_larger_than_the_upload_limit(tmp_path):
+def test_larger_than_the_upload_limit(tmp_path, capsys):
     # 26 MB of rows: refused as an upload, read locally (in 8 MB blocks)
     row = "0,1.00000000,7.00000000,0.70000000" + " " * 60 + "\n"
     n = (MAX_BYTES + 2**20) // len(row)
@@ -100,6 +101,12 @@ def test_larger_than_the_upload_limit(tmp_path):
     assert df.attrs["source_lines"][-1] == len(df) + 1
     with pytest.raises(TableError, match="limit"):
         localfiles.read_local(f, max_bytes=MAX_BYTES)
+    # and `thermoplane track` reads it whole (the textbook physics keeps this quick)
+    code = cli.main(["track", str(f), "--electrons", "classical", "--ionization", "full", "--no-coulomb",
+                     "--no-pairs", "--json"])
+    assert code == 0 and json.loads(capsys.readouterr().out)["rows"] == len(df)
+    assert cli.main(["track", str(f), "--max-mb", "25"]) == 2
+    assert "limit" in capsys.readouterr().err
 
 
 @pytest.mark.parametrize("content, fragment", [(b"", "empty"), (b"# only\n# comments\n", "comment"),

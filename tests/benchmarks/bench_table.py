@@ -6,9 +6,10 @@ with the full default physics, written to NetCDF:
 (a) with 2 worker processes (LocalCluster): the peak resident memory (RSS) of
     this process plus every worker, sampled every 50 ms, against the size of
     the whole table and of one chunk;
-(b) the wall time against the same number of points evaluated one chunk at a
-    time in this process (evaluate() on one 256 x 256 chunk, times the number
-    of chunks): the cost of Dask, transfer and writing.
+(b) the wall time against evaluate() in this process on a chunk's worth of
+    points spread over the whole grid, scaled to the table and divided by the
+    workers: the cost of Dask, transfer and writing (and of the machine's
+    other load, printed).
 
 Run: python tests/benchmarks/bench_table.py [n_points_per_axis] [workers]
 """
@@ -72,13 +73,17 @@ def main(n: int = 2000, workers: int = 2) -> None:
     chunk_mb = chunk * chunk * len(eostable.FIELDS) * 8 / 2**20
     n_chunks = int(np.ceil(n / chunk)) ** 2
 
-    # baseline: one chunk evaluated here (after a first call that builds the electron tables)
+    # baseline: evaluate() here on one chunk's worth of points spread evenly over the whole grid (every
+    # n/256-th row and column), after a first call that builds the electron tables; its RSS rise is the
+    # working memory of one chunk's evaluation
     ph.evaluate(1.0, 1e7, comp)
-    i = n // 2
-    sub_r, sub_T = log_rho[i - chunk // 2:i + chunk // 2], log_T[i - chunk // 2:i + chunk // 2]
-    t0 = time.perf_counter()
-    ph.evaluate(10.0 ** sub_r[:, None], 10.0 ** sub_T[None, :], comp)
-    one_chunk = time.perf_counter() - t0
+    step = max(1, n // chunk)
+    sub_r, sub_T = log_rho[::step][:chunk], log_T[::step][:chunk]
+    with RssSampler(0.01) as one:
+        t0 = time.perf_counter()
+        ph.evaluate(10.0 ** sub_r[:, None], 10.0 ** sub_T[None, :], comp)
+        one_chunk = (time.perf_counter() - t0) * n * n / (sub_r.size * sub_T.size) / n_chunks
+    one_mb = (one.peak - one.start) / 2**20
 
     # the same cluster idle, each worker warmed up (physics imported, electron tables built): the memory
     # every worker process has before it holds any chunk
@@ -103,6 +108,8 @@ def main(n: int = 2000, workers: int = 2) -> None:
     print(f"peak RSS of this process + workers while writing: {rss.peak / 2**20:.0f} MB; the same cluster idle "
           f"and warmed up: {idle.peak / 2**20:.0f} MB")
     print(f"rise while writing: {rise:.0f} MB = {rise / table_mb:.3f} of the table = {rise / chunk_mb:.1f} chunks")
+    print(f"RSS rise of one evaluate() on one chunk's worth of points in this process: {one_mb:.0f} MB "
+          f"(the working memory of a chunk on a worker)")
     print(f"wall / (one chunk evaluated here x {n_chunks} chunks / {workers} workers): "
           f"{wall / (one_chunk * n_chunks / workers):.2f}")
 
