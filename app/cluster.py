@@ -73,6 +73,7 @@ def client(workers: int | None = None, scheduler: str | None = None):
     # loopback only, and Dask's HTTP endpoints on a free port (no clash with a cluster already on 8787)
     where = {"host": "127.0.0.1"} if n > 1 else {}           # in-process workers talk over inproc://
     cluster = LocalCluster(n_workers=n, threads_per_worker=1, processes=n > 1, dashboard_address="127.0.0.1:0",
+                           worker_dashboard_address="127.0.0.1:0",
                            silence_logs=quiet, **where)
     try:
         c = Client(cluster)

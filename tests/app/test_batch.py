@@ -266,3 +266,15 @@ def test_cli_bad_scheduler_address_one_line_exit_2(grid, capsys, monkeypatch, ad
 def test_cli_empty_directory(tmp_path, capsys):
     (tmp_path / "empty").mkdir()
     _one_line_error(capsys, ["batch", str(tmp_path / "empty")], "holds no files")
+
+
+@pytest.mark.parametrize("workers", [1, 2])
+def test_local_clusters_listen_on_loopback_only(workers):
+    from thermoplane.app import cluster
+    with cluster.client(workers) as c:
+        c.wait_for_workers(workers)
+        procs = [psutil.Process()] + psutil.Process().children(recursive=True)
+        listening = [conn.laddr.ip for p in procs for conn in p.net_connections(kind="inet")
+                     if conn.status == psutil.CONN_LISTEN]
+    assert listening and all(ip in ("127.0.0.1", "::1") for ip in listening), listening
+    assert _workers_left() == []
