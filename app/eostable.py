@@ -124,6 +124,8 @@ def build(comp: Composition, log_rho, log_T, fields=None, chunk: int = DEFAULT_C
 
     from .batch import composition_text
 
+    if not isinstance(comp, Composition):
+        raise ValueError(f"comp must be a Composition, got {type(comp).__name__}")
     options = validate_options(**physics)
     names = list(FIELDS if fields is None else dict.fromkeys(fields))
     unknown = [f for f in names if f not in FIELDS]

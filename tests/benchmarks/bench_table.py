@@ -11,7 +11,7 @@ with the full default physics, written to NetCDF:
     workers: the cost of Dask, transfer and writing (and of the machine's
     other load, printed).
 
-Run: python tests/benchmarks/bench_table.py [n_points_per_axis] [workers]
+Run: python tests/benchmarks/bench_table.py [n_points_per_axis] [workers] [chunk]
 """
 
 from __future__ import annotations
@@ -37,16 +37,20 @@ class RssSampler:
 
     def __init__(self, interval: float = 0.05):
         self.interval, self.peak, self._stop = interval, 0, threading.Event()
+        self.per_process: dict[str, int] = {}
         self._thread = threading.Thread(target=self._run, daemon=True)
 
     def _total(self) -> int:
         me = psutil.Process()
-        total = me.memory_info().rss
-        for kid in me.children(recursive=True):
+        total = 0
+        for proc in [me] + me.children(recursive=True):
             try:
-                total += kid.memory_info().rss
+                rss = proc.memory_info().rss
             except psutil.NoSuchProcess:
-                pass
+                continue
+            total += rss
+            key = "this process" if proc.pid == me.pid else "a worker"
+            self.per_process[key] = max(self.per_process.get(key, 0), rss)
         return total
 
     def _run(self):
@@ -64,11 +68,10 @@ class RssSampler:
         self._thread.join()
 
 
-def main(n: int = 2000, workers: int = 2) -> None:
+def main(n: int = 2000, workers: int = 2, chunk: int = eostable.DEFAULT_CHUNK) -> None:
     comp = ph.Composition.from_xyz(0.70, 0.28, 0.02)
     log_rho, log_T = np.linspace(-10, 10, n), np.linspace(3, 10, n)
-    ds = eostable.build(comp, log_rho, log_T)
-    chunk = eostable.DEFAULT_CHUNK
+    ds = eostable.build(comp, log_rho, log_T, chunk=chunk)
     table_mb = n * n * len(eostable.FIELDS) * 8 / 2**20
     chunk_mb = chunk * chunk * len(eostable.FIELDS) * 8 / 2**20
     n_chunks = int(np.ceil(n / chunk)) ** 2
@@ -105,6 +108,8 @@ def main(n: int = 2000, workers: int = 2) -> None:
           f"{chunk_mb:.1f} MB; {n_chunks} chunks; file {size_mb:.0f} MB")
     print(f"{workers} workers: wall {wall:.1f} s")
     rise = (rss.peak - idle.peak) / 2**20
+    print("largest single-process RSS while writing (idle, warmed up): " + "; ".join(
+        f"{k} {v / 2**20:.0f} MB ({idle.per_process.get(k, 0) / 2**20:.0f} MB)" for k, v in rss.per_process.items()))
     print(f"peak RSS of this process + workers while writing: {rss.peak / 2**20:.0f} MB; the same cluster idle "
           f"and warmed up: {idle.peak / 2**20:.0f} MB")
     print(f"rise while writing: {rise:.0f} MB = {rise / table_mb:.3f} of the table = {rise / chunk_mb:.1f} chunks")
@@ -115,4 +120,4 @@ def main(n: int = 2000, workers: int = 2) -> None:
 
 
 if __name__ == "__main__":
-    main(*(int(a) for a in sys.argv[1:3]))
+    main(*(int(a) for a in sys.argv[1:4]))
