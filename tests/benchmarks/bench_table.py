@@ -88,11 +88,12 @@ def main(n: int = 2000, workers: int = 2, chunk: int = eostable.DEFAULT_CHUNK) -
         one_chunk = (time.perf_counter() - t0) * n * n / (sub_r.size * sub_T.size) / n_chunks
     one_mb = (one.peak - one.start) / 2**20
 
-    # the same cluster idle, each worker warmed up (physics imported, electron tables built): the memory
+    # the same cluster idle, each worker warmed up (physics imported, all electron tables built): the memory
     # every worker process has before it holds any chunk
     from thermoplane.app import cluster
     with cluster.client(workers) as c:
-        c.run(ph.evaluate, 1.0, 1e7, comp)
+        # the whole plane once (coarsely): every lazily built electron table is in place
+        c.run(ph.evaluate, 10.0 ** sub_r[::8, None], 10.0 ** sub_T[None, ::8], comp)
         time.sleep(1.0)
         with RssSampler() as idle:
             time.sleep(1.0)
