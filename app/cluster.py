@@ -51,7 +51,7 @@ def client(workers: int | None = None, scheduler: str | None = None):
     """
     from distributed import Client, LocalCluster
 
-    quiet = logging.ERROR
+    quiet = logging.CRITICAL       # a worker losing its scheduler at shutdown is not news for the user
     if scheduler is not None:
         address = scheduler.strip()
         if not address:

@@ -121,10 +121,11 @@ def test_broken_files_report_their_error_while_the_rest_complete(in_process):
 
 
 def test_local_cluster_gives_the_same_results(grid, in_process):
-    job = batch.Job(comp=COMP, physics=CLASSICAL)
-    results = batch.run(batch.expand_paths([grid]), job, workers=2)
-    assert _stable(results) == _stable(in_process)
-    assert _workers_left() == [], "LocalCluster workers left running"
+    # as a user runs it: the command, a LocalCluster of 2 worker processes, JSON and nothing on stderr
+    r = subprocess.run([sys.executable, "-m", "thermoplane.app.cli", "batch", str(grid), *CLASSICAL_ARGS,
+                        "--workers", "2", "--json"], capture_output=True, text=True, timeout=300, cwd=ROOT)
+    assert r.returncode == 1 and r.stderr == "", r.stderr
+    assert _stable(json.loads(r.stdout)["files"]) == _stable(in_process)
 
 
 def _free_port() -> int:
