@@ -136,13 +136,11 @@ def _fmt_age(value) -> str:
 
 
 def cmd_track(args) -> int:
-    from . import tracks, upload
+    from . import localfiles, tracks, upload
     comp = _composition(args)
     opts = _physics_options(args)
-    max_bytes = int(args.max_mb * 1024 * 1024)
-    with open(args.file, "rb") as fh:
-        data = fh.read(max_bytes + 1)             # never read more than the limit (plus one byte to tell)
-    df = upload.read_table(data, args.file, max_bytes=max_bytes)
+    max_bytes = None if args.max_mb is None else int(args.max_mb * 1024 * 1024)
+    df = localfiles.read_local(args.file, max_bytes=max_bytes)   # in chunks, no size limit by default
     mapping = upload.detect_columns(df)
     if args.rho_col is not None:
         mapping.rho_col = args.rho_col
@@ -206,11 +204,88 @@ def cmd_track(args) -> int:
     return 0
 
 
+def _positive_int(text: str) -> int:
+    try:
+        value = int(text)
+    except ValueError:
+        raise argparse.ArgumentTypeError(f"{text!r} is not a whole number") from None
+    if value < 1:
+        raise argparse.ArgumentTypeError(f"{text!r} must be at least 1")
+    return value
+
+
+def _add_columns(p: argparse.ArgumentParser) -> None:
+    """The column options of track and batch (in batch every file gets the same choices)."""
+    g = p.add_argument_group("columns (default: detected from the names in each file)")
+    g.add_argument("--rho-col", dest="rho_col", help="density column")
+    g.add_argument("--T-col", dest="T_col", help="temperature column")
+    scale = g.add_mutually_exclusive_group()
+    scale.add_argument("--log", dest="scale", action="store_const", const="log",
+                       help="both columns hold log10 values")
+    scale.add_argument("--linear", dest="scale", action="store_const", const="linear",
+                       help="both columns hold linear values")
+    g.add_argument("--units", choices=("cgs", "si"), help="density in g cm^-3 (cgs) or kg m^-3 (si)")
+    g.add_argument("--age-col", dest="age_col", help="age or model-number column ('' for the row number)")
+    for role, what in (("X", "hydrogen"), ("Y", "helium"), ("Z", "metal")):
+        g.add_argument(f"--{role}-col", dest=f"{role}_col",
+                       help=f"column of the {what} mass fraction per row (default: detected; '' for none); "
+                            "any two of X, Y, Z give the third")
+
+
+def _add_where(p: argparse.ArgumentParser) -> None:
+    g = p.add_argument_group("where it runs (Dask)").add_mutually_exclusive_group()
+    g.add_argument("--workers", type=_positive_int,
+                   help="worker processes of a local Dask cluster (default: one per core; 1 runs in this process)")
+    g.add_argument("--scheduler", help="address of a running Dask scheduler, e.g. tcp://10.0.0.5:8786")
+
+
+def cmd_batch(args) -> int:
+    from . import batch
+    comp = _composition(args)
+    job = batch.Job(comp=comp, physics=_physics_options(args),
+                    columns=batch.Columns(args.rho_col, args.T_col, args.scale, args.units, args.age_col,
+                                          args.X_col, args.Y_col, args.Z_col),
+                    max_bytes=None if args.max_mb is None else int(args.max_mb * 1024 * 1024))
+    paths = batch.expand_paths(args.paths)
+    results = batch.run(paths, job, workers=args.workers, scheduler=args.scheduler,
+                        progress=not args.json and sys.stderr.isatty())
+    if args.output:
+        with open(args.output, "w", encoding="utf-8", newline="") as fh:
+            fh.write(batch.summary_csv(results))
+    failed = sum(r["error"] is not None for r in results)
+    if args.json:
+        print(json.dumps(batch.json_ready(results), indent=2))
+    else:
+        for r in results:
+            if r["error"] is not None:
+                print(f"{r['path']}: error: {r['error']}")
+            else:
+                print(f"{r['path']}: {r['rows']} rows, {len(r['bad_rows'])} bad, {len(r['crossings'])} crossing(s)")
+        print(f"{len(results)} file(s), {failed} failed, {sum(len(r['crossings']) for r in results)} crossing(s)")
+        if args.output:
+            print(f"wrote {args.output}", file=sys.stderr)
+    return 1 if failed else 0
+
+
+def cmd_table(args) -> int:
+    from . import eostable
+    comp = _composition(args)
+    log_rho = eostable.axis("log_rho", args.log_rho)
+    log_T = eostable.axis("log_T", args.log_T)
+    eostable.output_format(args.output)
+    ds = eostable.build(comp, log_rho, log_T, fields=args.fields, chunk=args.chunk, **_physics_options(args))
+    fmt = eostable.write(ds, args.output, workers=args.workers, scheduler=args.scheduler,
+                         progress=sys.stderr.isatty())
+    print(f"wrote {args.output} ({fmt}, {len(log_rho)} x {len(log_T)} points, {len(ds.data_vars)} fields)",
+          file=sys.stderr)
+    return 0
+
+
 def build_parser() -> argparse.ArgumentParser:
     parser = _Parser(
         prog="thermoplane",
         description="The density-temperature plane of stellar matter: a dashboard and command-line answers.")
-    sub = parser.add_subparsers(dest="command", metavar="{serve,point,track,map}")
+    sub = parser.add_subparsers(dest="command", metavar="{serve,point,track,batch,table,map}")
 
     p = sub.add_parser("serve", help="start the dashboard", description="Start the dashboard in this process.")
     p.add_argument("--host", default="127.0.0.1",
@@ -233,21 +308,7 @@ def build_parser() -> argparse.ArgumentParser:
                                    "add P, P_gas, P_rad, beta, eta, gamma1, nabla_ad and the regime to every "
                                    "row, and list where the track crosses each regime boundary.")
     p.add_argument("file", help="the table: a header row, then one row per model or layer")
-    p.add_argument("--rho-col", dest="rho_col", help="density column (default: detected from the names)")
-    p.add_argument("--T-col", dest="T_col", help="temperature column (default: detected from the names)")
-    scale = p.add_mutually_exclusive_group()
-    scale.add_argument("--log", dest="scale", action="store_const", const="log",
-                       help="both columns hold log10 values (default: detected)")
-    scale.add_argument("--linear", dest="scale", action="store_const", const="linear",
-                       help="both columns hold linear values (default: detected)")
-    p.add_argument("--units", choices=("cgs", "si"), help="density in g cm^-3 (cgs) or kg m^-3 (si); "
-                                                          "default: detected, else cgs")
-    p.add_argument("--age-col", dest="age_col", help="age or model-number column (default: detected; "
-                                                     "'' for the row number)")
-    for role, what in (("X", "hydrogen"), ("Y", "helium"), ("Z", "metal")):
-        p.add_argument(f"--{role}-col", dest=f"{role}_col",
-                       help=f"column of the {what} mass fraction per row (default: detected; '' for none); "
-                            "any two of X, Y, Z give the third")
+    _add_columns(p)
     p.add_argument("--eps-levels", dest="eps_levels", type=_level_list, default=(1.0, 1e3),
                    help="energy generation rates (erg g^-1 s^-1) whose ignition contours are reported as "
                         "crossings, comma separated (default 1,1e3, as on the map)")
@@ -258,9 +319,47 @@ def build_parser() -> argparse.ArgumentParser:
     _add_physics(p)
     p.add_argument("-o", "--output", help="write the table with the computed columns to this CSV file")
     p.add_argument("--json", action="store_true", help="print the rows, bad rows and crossings as JSON")
-    p.add_argument("--max-mb", dest="max_mb", type=_positive_float, default=25.0,
-                   help="largest accepted file in MB, raw or decompressed (default 25)")
+    p.add_argument("--max-mb", dest="max_mb", type=_positive_float, default=None,
+                   help="refuse files larger than this in MB, raw or decompressed (default: no limit; "
+                        "local files are read in chunks)")
     p.set_defaults(func=cmd_track)
+
+    p = sub.add_parser("batch", help="report the crossings of many track files, one Dask task per file",
+                       description="Read every track file (paths, directories, glob patterns), evaluate it and "
+                                   "find its crossings as one Dask task per file, and write one summary: a row "
+                                   "per crossing, and a row with the message for each file that failed. Exit "
+                                   "status 1 when any file failed.")
+    p.add_argument("paths", nargs="+", metavar="PATH", help="track files, directories of them, or glob patterns")
+    _add_columns(p)
+    _add_composition(p)
+    _add_physics(p)
+    p.add_argument("-o", "--output", help="write the summary CSV (file, boundary, row, log_rho, log_T, parameter, "
+                                          "composition, error) to this file")
+    p.add_argument("--json", action="store_true", help="print every file's rows, bad rows, crossings and error "
+                                                       "as JSON (no progress bar)")
+    p.add_argument("--max-mb", dest="max_mb", type=_positive_float, default=None,
+                   help="refuse files larger than this in MB (default: no limit)")
+    _add_where(p)
+    p.set_defaults(func=cmd_batch)
+
+    from .eostable import DEFAULT_CHUNK, FIELDS
+    p = sub.add_parser("table", help="write an equation-of-state table (NetCDF or Zarr) computed on Dask",
+                       description="Every ThermoState field on an evenly spaced (log rho, log T) grid, computed "
+                                   "in chunks on Dask and written as an xarray Dataset to NetCDF (.nc) or "
+                                   "Zarr (.zarr).")
+    _add_composition(p)
+    _add_physics(p)
+    p.add_argument("--log-rho", dest="log_rho", nargs=3, required=True, metavar=("LO", "HI", "N"),
+                   help="log10 density (g cm^-3): from LO to HI in N points")
+    p.add_argument("--log-T", dest="log_T", nargs=3, required=True, metavar=("LO", "HI", "N"),
+                   help="log10 temperature (K): from LO to HI in N points")
+    p.add_argument("--fields", nargs="+", choices=FIELDS, metavar="FIELD",
+                   help=f"fields to write (default: all): {', '.join(FIELDS)}")
+    p.add_argument("--chunk", type=_positive_int, default=DEFAULT_CHUNK,
+                   help=f"points per side of a chunk (default {DEFAULT_CHUNK})")
+    p.add_argument("-o", "--output", required=True, help="output file: NAME.nc (NetCDF) or NAME.zarr (Zarr)")
+    _add_where(p)
+    p.set_defaults(func=cmd_table)
 
     p = sub.add_parser("map", help="write the map as a standalone interactive HTML figure",
                        description="Write the density-temperature map as one HTML file that opens offline.")
