@@ -39,10 +39,15 @@ def test_netcdf_table_equals_evaluate_at_random_points(tmp_path, capsys):
         assert ds["P"].dims == ("log_rho", "log_T") and ds["P"].shape == (37, 29)
         np.testing.assert_allclose(ds["log_rho"].values, np.linspace(-6, 6, 37), rtol=0, atol=0)
         i, j, state = _at_random_points(ds, comp, {})
+        # to rounding: 1e-10, since a chunk and a handful of points take different vectorised paths and a
+        # response function near zero (chi_T ~ 1e-6 where radiation dominates) keeps ~1e-12 of its size;
         for name in eostable.FIELDS:
             got = ds[name].values[i, j]
-            np.testing.assert_allclose(got, getattr(state, name) * np.ones_like(got), rtol=1e-12, atol=0,
-                                       err_msg=name)
+            want = getattr(state, name) * np.ones_like(got)
+            # differences of large terms (the melting margin: two free energies of ~Gamma per ion) keep
+            # rounding of their parts' size, not of their own
+            scale = 1e-10 * max(1.0, float(np.nanmax(np.abs(want)))) if name == "melt_margin" else 0.0
+            np.testing.assert_allclose(got, want, rtol=1e-10, atol=scale, err_msg=name)
         # units and words from the physics tables; the run's composition, options and version
         assert ds["P"].attrs == {"units": ph.FIELD_UNITS["P"], "description": ph.FIELD_DESCRIPTIONS["P"]}
         assert ds["c_V"].attrs["units"] == "erg g^-1 K^-1"
@@ -65,7 +70,7 @@ def test_zarr_on_a_local_cluster_equals_evaluate(tmp_path):
     assert sorted(back.data_vars) == ["P", "eta", "gamma1"]
     i, j, state = _at_random_points(back, comp, CLASSICAL, seed=7)
     for name in ("P", "eta", "gamma1"):
-        np.testing.assert_allclose(back[name].values[i, j], getattr(state, name), rtol=1e-12, atol=0)
+        np.testing.assert_allclose(back[name].values[i, j], getattr(state, name), rtol=1e-10, atol=0)
     assert back.attrs["physics_electrons"] == "classical" and back.attrs["composition"].startswith("He-4=0.98")
     # writing again replaces the old store
     small = eostable.build(comp, [0.0, 1.0], [7.0], fields=["P"], **CLASSICAL)

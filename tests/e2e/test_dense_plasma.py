@@ -28,8 +28,10 @@ def test_melting_and_quantum_ion_lines_and_cv_split(server_url, page):
     screenshot(page, "dense_plasma_lines")
     # pin a point in the cold, dense corner: a crystal of quantum ions
     box = page.locator("#plane-graph .nsewdrag").first.bounding_box()
-    page.mouse.click(box["x"] + 0.85 * box["width"], box["y"] + 0.85 * box["height"])
-    page.wait_for_selector("#point-state-table", timeout=TIMEOUT)
+    # (x at 0.80: clear of the vertical capture line of H-1 near log rho 7.1, which takes the click)
+    page.mouse.click(box["x"] + 0.80 * box["width"], box["y"] + 0.85 * box["height"])
+    page.wait_for_function("() => document.querySelector('#point-heading').innerText.includes('c_V')",
+                           timeout=TIMEOUT)
     heading = page.inner_text("#point-heading")
     assert "c_V" in heading and "ions" in heading and "electrons" in heading and "crystal" in heading
     assert "c_V_ion" in page.inner_text("#point-state-table")
