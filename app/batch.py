@@ -65,7 +65,14 @@ class Columns:
             value = getattr(self, f"{role}_col")
             if value is not None:
                 setattr(mapping, f"{role}_col", value or None)
+                mapping.nuclide_cols = {}             # X/Y/Z columns chosen: they give the composition
         return mapping
+
+    @classmethod
+    def from_args(cls, args) -> "Columns":
+        """The choices of the command line's column options (see cli._add_columns)."""
+        return cls(args.rho_col, args.T_col, args.scale, args.units, args.age_col, args.X_col, args.Y_col,
+                   args.Z_col)
 
 
 @dataclass(frozen=True)

@@ -137,26 +137,12 @@ def _fmt_age(value) -> str:
 
 def cmd_track(args) -> int:
     from . import localfiles, tracks, upload
+    from .batch import Columns
     comp = _composition(args)
     opts = _physics_options(args)
     max_bytes = None if args.max_mb is None else int(args.max_mb * 1024 * 1024)
     df = localfiles.read_local(args.file, max_bytes=max_bytes)   # in chunks, no size limit by default
-    mapping = upload.detect_columns(df)
-    if args.rho_col is not None:
-        mapping.rho_col = args.rho_col
-    if args.T_col is not None:
-        mapping.T_col = args.T_col
-    if args.scale is not None:
-        mapping.rho_log = mapping.T_log = args.scale == "log"
-    if args.units is not None:
-        mapping.units = args.units
-    if args.age_col is not None:
-        mapping.age_col = args.age_col or None
-    for role in ("X", "Y", "Z"):
-        value = getattr(args, f"{role}_col")
-        if value is not None:
-            setattr(mapping, f"{role}_col", value or None)
-            mapping.nuclide_cols = {}             # X/Y/Z columns chosen: they give the composition
+    mapping = Columns.from_args(args).apply(upload.detect_columns(df))
     if mapping.rho_col is None or mapping.T_col is None:
         notes = "; ".join(mapping.ambiguous) or "no density or temperature column found"
         raise CliError(f"{notes}; give --rho-col and --T-col (columns: {', '.join(map(str, df.columns))})")
@@ -243,8 +229,7 @@ def cmd_batch(args) -> int:
     from . import batch
     comp = _composition(args)
     job = batch.Job(comp=comp, physics=_physics_options(args),
-                    columns=batch.Columns(args.rho_col, args.T_col, args.scale, args.units, args.age_col,
-                                          args.X_col, args.Y_col, args.Z_col),
+                    columns=batch.Columns.from_args(args),
                     max_bytes=None if args.max_mb is None else int(args.max_mb * 1024 * 1024))
     paths = batch.expand_paths(args.paths)
     results = batch.run(paths, job, workers=args.workers, scheduler=args.scheduler,

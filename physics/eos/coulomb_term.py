@@ -29,6 +29,7 @@ from numba import njit
 
 from .. import constants as _c
 from ..coulomb import A1, A2, A3, B1, B2, B3, B4
+from .hermite import quintic
 
 __all__ = ["ion_coulomb", "GAMMA_E_COEFF"]
 
@@ -79,25 +80,7 @@ def _ocp_lookup(lnG, tf, tu, tv):
     i = int(x)
     if i > tf.size - 2:
         i = tf.size - 2
-    s = x - i
-    h = _HG
-    f0, f1 = tf[i], tf[i + 1]
-    d0, d1 = tu[i] * h, tu[i + 1] * h
-    c0, c1 = tv[i] * h * h, tv[i + 1] * h * h
-    s2 = s * s
-    s3 = s2 * s
-    s4 = s3 * s
-    s5 = s4 * s
-    v = (f0 * (1 - 10 * s3 + 15 * s4 - 6 * s5) + d0 * (s - 6 * s3 + 8 * s4 - 3 * s5)
-         + c0 * 0.5 * (s2 - 3 * s3 + 3 * s4 - s5) + c1 * 0.5 * (s3 - 2 * s4 + s5)
-         + d1 * (-4 * s3 + 7 * s4 - 3 * s5) + f1 * (10 * s3 - 15 * s4 + 6 * s5))
-    dv = (f0 * (-30 * s2 + 60 * s3 - 30 * s4) + d0 * (1 - 18 * s2 + 32 * s3 - 15 * s4)
-          + c0 * 0.5 * (2 * s - 9 * s2 + 12 * s3 - 5 * s4) + c1 * 0.5 * (3 * s2 - 8 * s3 + 5 * s4)
-          + d1 * (-12 * s2 + 28 * s3 - 15 * s4) + f1 * (30 * s2 - 60 * s3 + 30 * s4)) / h
-    ddv = (f0 * (-60 * s + 180 * s2 - 120 * s3) + d0 * (-36 * s + 96 * s2 - 60 * s3)
-           + c0 * 0.5 * (2 - 18 * s + 36 * s2 - 20 * s3) + c1 * 0.5 * (6 * s - 24 * s2 + 20 * s3)
-           + d1 * (-24 * s + 84 * s2 - 60 * s3) + f1 * (60 * s - 180 * s2 + 120 * s3)) / (h * h)
-    return v, dv, ddv
+    return quintic(tf[i], tu[i], tv[i], tf[i + 1], tu[i + 1], tv[i + 1], x - i, _HG)
 
 
 @njit(cache=True, error_model="numpy")

@@ -58,6 +58,7 @@ from ..composition import Composition
 from . import jets as J
 from .coulomb_term import ion_coulomb
 from .electron_kernel import classical_point, electron_arrays, electron_point
+from .hermite import quintic
 from .species import H2_TABLE, Species, species_for
 
 __all__ = ["Equilibrium", "solve_equilibrium"]
@@ -82,37 +83,7 @@ def _h2_lnZ(lnT, tx, ty, t1, t2):
     i = int((lnT - tx[0]) / h)
     if i > n - 2:
         i = n - 2
-    s = (lnT - tx[i]) / h
-    f0, f1 = ty[i], ty[i + 1]
-    d0, d1 = t1[i] * h, t1[i + 1] * h
-    c0, c1 = t2[i] * h * h, t2[i + 1] * h * h
-    # quintic Hermite basis on [0, 1]
-    s2 = s * s
-    s3 = s2 * s
-    s4 = s3 * s
-    s5 = s4 * s
-    H0 = 1 - 10 * s3 + 15 * s4 - 6 * s5
-    H1 = s - 6 * s3 + 8 * s4 - 3 * s5
-    H2 = 0.5 * (s2 - 3 * s3 + 3 * s4 - s5)
-    H3 = 0.5 * (s3 - 2 * s4 + s5)
-    H4 = -4 * s3 + 7 * s4 - 3 * s5
-    H5 = 10 * s3 - 15 * s4 + 6 * s5
-    dH0 = -30 * s2 + 60 * s3 - 30 * s4
-    dH1 = 1 - 18 * s2 + 32 * s3 - 15 * s4
-    dH2 = 0.5 * (2 * s - 9 * s2 + 12 * s3 - 5 * s4)
-    dH3 = 0.5 * (3 * s2 - 8 * s3 + 5 * s4)
-    dH4 = -12 * s2 + 28 * s3 - 15 * s4
-    dH5 = 30 * s2 - 60 * s3 + 30 * s4
-    ddH0 = -60 * s + 180 * s2 - 120 * s3
-    ddH1 = -36 * s + 96 * s2 - 60 * s3
-    ddH2 = 0.5 * (2 - 18 * s + 36 * s2 - 20 * s3)
-    ddH3 = 0.5 * (6 * s - 24 * s2 + 20 * s3)
-    ddH4 = -24 * s + 84 * s2 - 60 * s3
-    ddH5 = 60 * s - 180 * s2 + 120 * s3
-    v = f0 * H0 + d0 * H1 + c0 * H2 + c1 * H3 + d1 * H4 + f1 * H5
-    dv = (f0 * dH0 + d0 * dH1 + c0 * dH2 + c1 * dH3 + d1 * dH4 + f1 * dH5) / h
-    ddv = (f0 * ddH0 + d0 * ddH1 + c0 * ddH2 + c1 * ddH3 + d1 * ddH4 + f1 * ddH5) / (h * h)
-    return v, dv, ddv
+    return quintic(ty[i], t1[i], t2[i], ty[i + 1], t1[i + 1], t2[i + 1], (lnT - tx[i]) / h, h)
 
 
 @njit(cache=True, error_model="numpy")
