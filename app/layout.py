@@ -243,6 +243,12 @@ def about_physics() -> list:
           "interpolation between exact limits (see the README); below about 10³·⁵ K in degenerate matter "
           "the tabulated electron gas limits the entropy and c_V to its own accuracy. "
           "The lines on the map are read off the map's own pixels (refine the resolution for finer lines)."),
+        P("Being built: one free energy for partly ionized, pressure-ionized and molecular matter (H₂, every "
+          "ionization stage of every element, the Coulomb term of each ion, an excluded volume whose derivative "
+          "is the occupation probability), with every quantity from one minimum. It is available from Python "
+          "and the command line as ionization=\"chemical\" (experimental: stiff in the pressure-ionization "
+          "band, about a thousand times slower per point than this map allows, not yet with the dense-plasma "
+          "terms); see the README."),
         P("Results are for exploration and checks. For a publication, compare against a full tabulated "
           "equation of state.", className="strong"),
     ]
