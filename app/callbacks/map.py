@@ -10,7 +10,7 @@ from __future__ import annotations
 import logging
 
 import numpy as np
-from dash import Input, Output, State, no_update
+from dash import Input, Output, State, ctx, no_update
 
 from ... import physics as ph
 from ...physics import impact, plane, regimes
@@ -24,7 +24,8 @@ from .composition import readout
 
 log = logging.getLogger(__name__)
 
-__all__ = ["MESSAGES", "ViewError", "parse_view", "physics_options", "map_figure", "update_map",
+__all__ = ["MESSAGES", "ViewError", "parse_view", "physics_options", "map_figure", "update_map", "is_preview",
+           "PREVIEW_RESOLUTION",
            "composition_from_inputs", "quantity", "register"]
 
 #: Message areas, each next to the controls whose errors it shows.
@@ -214,11 +215,25 @@ def map_figure(comp: ph.Composition, view: dict = DEFAULT_VIEW, extra_traces=())
     return fig
 
 
+#: Pixels per side of the coarse map drawn while a composition slider moves (the chosen resolution if lower).
+PREVIEW_RESOLUTION = 100
+#: The only changes a preview may answer: the drag itself and the X, Y, Z boxes it writes.
+PREVIEW_TRIGGERS = frozenset({"comp-drag.data", "comp-X.value", "comp-Y.value", "comp-Z.value"})
+
+
+def is_preview(drag, triggered) -> bool:
+    """Whether this redraw is a coarse preview: a composition slider is held (the "comp-drag" store says
+    so) and nothing but the drag and the boxes it writes changed. Any other control draws in full."""
+    held = isinstance(drag, dict) and bool(drag.get("drag"))
+    triggered = set(triggered or ())
+    return held and bool(triggered) and triggered <= PREVIEW_TRIGGERS
+
+
 def _empty_messages() -> dict:
     return {m: "" for m in MESSAGES}
 
 
-def update_map(tracks=None, track_colour_by=None, **controls) -> dict:
+def update_map(tracks=None, track_colour_by=None, preview=False, **controls) -> dict:
     """Callback body: control values (keyed like state.CONTROLS) -> outputs dict.
 
     ``tracks`` is the tracks store (drawn over the map, so they survive every
@@ -227,16 +242,21 @@ def update_map(tracks=None, track_colour_by=None, **controls) -> dict:
     Outputs: "figure" (or no_update: the last good map stays), "readout",
     "view" (the checked view with its URL query, for sharing and export) and
     one text per message area of :data:`MESSAGES`.
+
+    ``preview`` (a slider is moving): the map is drawn with at most :data:`PREVIEW_RESOLUTION` pixels per
+    side and the view (URL, point, tracks readouts) is left alone until the full map follows.
     """
     out = {"figure": no_update, "readout": no_update, "view": no_update, **_empty_messages()}
     try:
         view = controls_to_view(**controls)
         comp, opts, clean = parse_view(view)
         out["readout"] = readout(comp)
-        fig, grid, messages = build(comp, opts, clean, track_overlay(tracks, track_colour_by, comp, opts, clean))
+        drawn = {**clean, "resolution": min(int(clean["resolution"]), PREVIEW_RESOLUTION)} if preview else clean
+        fig, grid, messages = build(comp, opts, drawn, track_overlay(tracks, track_colour_by, comp, opts, drawn))
         out.update(messages)
         out["figure"] = fig
-        out["view"] = {"view": jsonable(clean), "query": encode_view(clean)}
+        if not preview:
+            out["view"] = {"view": jsonable(clean), "query": encode_view(clean)}
     except ViewError as err:
         out[err.where] = str(err)
     except ValueError as err:
@@ -254,7 +274,12 @@ def register(app) -> None:
     inputs = {k: Input(cid, prop) for k, (cid, prop) in CONTROLS.items()}
     inputs["tracks"] = Input("tracks-store", "data")
     inputs["track_colour_by"] = Input("tracks-colour-by", "value")
-    app.callback(output=outputs, inputs=inputs)(update_map)
+    inputs["drag"] = Input("comp-drag", "data")
+
+    def _map(drag=None, **controls):
+        return update_map(preview=is_preview(drag, ctx.triggered_prop_ids), **controls)
+
+    app.callback(output=outputs, inputs=inputs)(_map)
 
     # Hover readout, in the browser: value, (rho, T) and regime name of the pixel.
     app.clientside_callback(
