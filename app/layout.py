@@ -150,6 +150,7 @@ def map_controls_panel(c: dict) -> html.Section:
                   _number("map-resolution", c["resolution"], 10, *UI_RESOLUTION, label="pixels",
                           title=f"pixels per side, {UI_RESOLUTION[0]}–{UI_RESOLUTION[1]}")], className="field-row"),
         _message("map-range-message"),
+        _message("map-zoom-message"),
         _message("map-message"),
     ], className="panel", id="panel-map")
 

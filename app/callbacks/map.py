@@ -20,12 +20,12 @@ from ..state import COLOR_CHOICES, CONTROLS, DEFAULT_VIEW, controls_to_view, enc
 from ..view import (ASINH_SCALES, ViewError, _range, composition_from_inputs, jsonable, overlay_lines, parse_view,  # noqa: F401
                     physics_options, quantity, track_overlay, view_from_store)
 from . import layers
-from .composition import readout
+from .composition import number, readout
 
 log = logging.getLogger(__name__)
 
 __all__ = ["MESSAGES", "ViewError", "parse_view", "physics_options", "map_figure", "update_map", "is_preview",
-           "PREVIEW_RESOLUTION",
+           "PREVIEW_RESOLUTION", "zoom_ranges",
            "composition_from_inputs", "quantity", "register"]
 
 #: Message areas, each next to the controls whose errors it shows.
@@ -267,6 +267,57 @@ def update_map(tracks=None, track_colour_by=None, preview=False, **controls) -> 
     return out
 
 
+#: Decimals kept of a zoomed range (the URL stays readable; 1e-4 in log is far below a pixel).
+ZOOM_DECIMALS = 4
+
+
+def _axis_range(relayout: dict, axis: str):
+    """(lo, hi) a relayout event gives for ``axis`` ("xaxis"/"yaxis"), "auto" for an autorange, or None."""
+    if relayout.get(f"{axis}.autorange"):
+        return "auto"
+    pair = relayout.get(f"{axis}.range")
+    if not isinstance(pair, (list, tuple)) or len(pair) != 2:
+        pair = (relayout.get(f"{axis}.range[0]"), relayout.get(f"{axis}.range[1]"))
+    if pair[0] is None or pair[1] is None:
+        return None
+    lo, hi = sorted(number(v, axis) for v in pair)
+    return lo, hi
+
+
+def zoom_ranges(relayout) -> tuple:
+    """Callback body: a zoom or pan on the map -> (log ρ from, to, log T from, to, message).
+
+    The range boxes are the view (and the URL), so writing them recomputes the plane at full resolution for
+    the new ranges. A range beyond the allowed limits is clamped to them and the message says so, in the
+    words of the range check; an autorange (double click) goes back to the ranges in the boxes, so it
+    changes nothing. Untouched values are ``no_update``.
+    """
+    out = [no_update] * 4 + [no_update]
+    if not isinstance(relayout, dict):
+        return tuple(out)
+    notes = []
+    try:
+        for i, (axis, name, limits) in enumerate((("xaxis", "log ρ", plane.LOG_RHO_LIMITS),
+                                                  ("yaxis", "log T", plane.LOG_T_LIMITS))):
+            r = _axis_range(relayout, axis)
+            if r is None or r == "auto":
+                continue
+            lo, hi = (round(v, ZOOM_DECIMALS) for v in r)
+            for which, v in (("from", lo), ("to", hi)):
+                if not limits[0] <= v <= limits[1]:
+                    notes.append(f"{name} {which} = {v:g} must be between {limits[0]:g} and {limits[1]:g}; "
+                                 "the zoom stops there")
+            lo, hi = min(max(lo, limits[0]), limits[1]), min(max(hi, limits[0]), limits[1])
+            if not hi > lo:
+                notes.append(f"{name}: the zoomed range is too narrow; the map stays")
+                continue
+            out[2 * i], out[2 * i + 1] = lo, hi
+    except ValueError as err:
+        return tuple([no_update] * 4 + [str(err)])
+    out[4] = " ".join(notes)
+    return tuple(out)
+
+
 def register(app) -> None:
     outputs = {"figure": Output("plane-graph", "figure"), "readout": Output("comp-readout", "children"),
                "view": Output("view-store", "data"),
@@ -280,6 +331,12 @@ def register(app) -> None:
         return update_map(preview=is_preview(drag, ctx.triggered_prop_ids), **controls)
 
     app.callback(output=outputs, inputs=inputs)(_map)
+
+    # Zoom and pan recompute the plane: the new ranges go into the range boxes (the view and the URL).
+    app.callback(Output("map-rho-lo", "value", allow_duplicate=True), Output("map-rho-hi", "value", allow_duplicate=True),
+                 Output("map-T-lo", "value", allow_duplicate=True), Output("map-T-hi", "value", allow_duplicate=True),
+                 Output("map-zoom-message", "children"),
+                 Input("plane-graph", "relayoutData"), prevent_initial_call=True)(zoom_ranges)
 
     # Hover readout, in the browser: value, (rho, T) and regime name of the pixel.
     app.clientside_callback(

@@ -414,3 +414,38 @@ def test_sliders_sit_beside_the_boxes():
     for k in "XYZ":
         assert f"comp-{k}-slider" in text
     assert _slider_value(0.7) == 0.7 and _slider_value("x") is None and _slider_value(1.5) == 1.0
+
+
+# -- zoom and pan ------------------------------------------------------------------------------------------
+
+def test_zoom_writes_the_range_boxes():
+    out = map_cb.zoom_ranges({"xaxis.range[0]": -2.123456, "xaxis.range[1]": 3.5,
+                              "yaxis.range[0]": 5.25, "yaxis.range[1]": 7.0})
+    assert out == (-2.1235, 3.5, 5.25, 7.0, "")
+    pan = map_cb.zoom_ranges({"xaxis.range": [1.0, 4.0]})           # a pan along ρ only
+    assert pan[:2] == (1.0, 4.0) and pan[2] is no_update and pan[3] is no_update
+
+
+def test_zoom_beyond_the_limits_is_clamped_with_a_message():
+    lo, hi = plane.LOG_RHO_LIMITS
+    out = map_cb.zoom_ranges({"xaxis.range[0]": lo - 3, "xaxis.range[1]": lo + 2})
+    assert out[:2] == (lo, lo + 2)
+    assert f"must be between {lo:g} and {hi:g}" in out[4]
+
+
+def test_autorange_and_other_relayouts_change_nothing():
+    for event in ({"xaxis.autorange": True, "yaxis.autorange": True}, {"autosize": True}, None,
+                  {"dragmode": "pan"}):
+        out = map_cb.zoom_ranges(event)
+        assert all(v is no_update for v in out[:4])
+    bad = map_cb.zoom_ranges({"xaxis.range[0]": "abc", "xaxis.range[1]": 2})
+    assert all(v is no_update for v in bad[:4]) and "not a number" in bad[4]
+
+
+def test_zoomed_ranges_recompute_the_plane():
+    out = map_cb.update_map(**controls(rho_lo=-2.0, rho_hi=3.5, T_lo=5.25, T_hi=7.0))
+    hm = heatmap(out["figure"])
+    assert hm.z.shape == (60, 60)
+    assert min(hm.x) == pytest.approx(-2.0) and max(hm.x) == pytest.approx(3.5)
+    assert min(hm.y) == pytest.approx(5.25) and max(hm.y) == pytest.approx(7.0)
+    assert encode_view({**VIEW, "log_rho": (-2.0, 3.5), "log_T": (5.25, 7.0)}) == out["view"]["query"]

@@ -92,3 +92,39 @@ def test_dragging_X_redraws_while_the_hand_moves(server_url, page):
     comp = ph.Composition.from_xyz(X, 0.28, 1 - X - 0.28, metals="solar-like")
     assert page.inner_text("#comp-readout").split()[2] == f"{comp.mu:.4f}"
     assert page.console_errors == []
+
+
+def test_zooming_into_a_box_recomputes_the_plane(server_url, page):
+    page.goto(server_url)
+    before = _full_map(page)
+    area = page.locator("#plane-graph .nsewdrag").first.bounding_box()
+    # drag a box over the middle of the plot with the mouse (plotly's zoom)
+    x0, y0 = area["x"] + 0.40 * area["width"], area["y"] + 0.30 * area["height"]
+    x1, y1 = area["x"] + 0.70 * area["width"], area["y"] + 0.60 * area["height"]
+    page.mouse.move(x0, y0)
+    page.mouse.down()
+    page.mouse.move((x0 + x1) / 2, (y0 + y1) / 2, steps=4)
+    page.mouse.move(x1, y1, steps=4)
+    page.mouse.up()
+    page.wait_for_function("() => Number(document.querySelector('#map-rho-lo').value) > -9")
+    lo, hi = float(page.input_value("#map-rho-lo")), float(page.input_value("#map-rho-hi"))
+    tlo, thi = float(page.input_value("#map-T-lo")), float(page.input_value("#map-T-hi"))
+    # the box was 40–70 % across and 40–70 % up the old ranges (-10..10, 3..10)
+    assert abs(lo - (-10 + 0.4 * 20)) < 0.3 and abs(hi - (-10 + 0.7 * 20)) < 0.3
+    assert abs(tlo - (3 + 0.4 * 7)) < 0.2 and abs(thi - (3 + 0.7 * 7)) < 0.2
+    # the plane is recomputed for the new ranges at full resolution (not the old pixels stretched)
+    page.wait_for_function(f"""() => {{ const h = ({HEATMAP})();
+        return h && h[0] === 300 && Math.abs(h[1] - {lo}) < 1e-4 && Math.abs(h[2] - {hi}) < 1e-4
+               && Math.abs(h[4] - {tlo}) < 1e-4 && Math.abs(h[5] - {thi}) < 1e-4; }}""", timeout=60000)
+    after = page.evaluate(HEATMAP)
+    assert after[0] == before[0] == 300 and after[3] == 300
+    page.wait_for_function(f"""() => new URLSearchParams(window.location.search).get('log_rho') === '{lo:g},{hi:g}'
+                                     && new URLSearchParams(window.location.search).get('log_T') === '{tlo:g},{thi:g}'""",
+                           timeout=10000)
+    screenshot(page, "zoom_box")
+    # zooming out beyond the allowed ranges stops at the limits and says so
+    page.evaluate("""() => window.Plotly.relayout(document.querySelector('#plane-graph .js-plotly-plot'),
+                                                  {'xaxis.range[0]': -30, 'xaxis.range[1]': 5})""")
+    page.wait_for_selector("#map-zoom-message:has-text('must be between')")
+    page.wait_for_function("() => Number(document.querySelector('#map-rho-lo').value) < -9")
+    assert page.console_errors == []
