@@ -10,4 +10,4 @@ COPY assets ./assets
 RUN pip install --no-cache-dir . && useradd --create-home --uid 10001 thermoplane
 USER thermoplane
 EXPOSE 8050
-CMD ["gunicorn", "--bind", "0.0.0.0:8050", "--workers", "2", "--timeout", "180", "thermoplane.app.wsgi:server"]
+CMD ["gunicorn", "--preload", "--bind", "0.0.0.0:8050", "--workers", "2", "--timeout", "180", "thermoplane.app.wsgi:server"]

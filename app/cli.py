@@ -93,6 +93,8 @@ def cmd_serve(args) -> int:
         print(f"Thermoplane is reachable from the network at http://{args.host}:{args.port}/", file=sys.stderr)
     print(f"Thermoplane: open http://{args.host}:{args.port}/ in a browser (Ctrl+C stops it)", file=sys.stderr)
     app = create_app()
+    from .main import warm_up
+    print(f"Thermoplane: kernels ready in {warm_up():.1f} s", file=sys.stderr)
     app.run(host=args.host, port=args.port, debug=args.debug, use_reloader=args.debug)
     return 0
 

@@ -105,6 +105,12 @@ def _overlap(a, b) -> float:
     return max(dx, 0.0) * max(dy, 0.0)
 
 
+def _edges(points) -> tuple[float, float]:
+    """The first and last grid points (the plane's grid includes the ends of its ranges)."""
+    c = np.asarray(points, dtype=float).ravel()
+    return float(c[0]), float(c[-1])
+
+
 def place_labels(lines, x_range, y_range, font: float, avoid=()) -> list[tuple[float, float] | None]:
     """A label point on each line, inside the view, avoiding earlier labels and the ``avoid`` points.
 
@@ -288,7 +294,10 @@ def plane_figure(log_rho: np.ndarray, log_T: np.ndarray, z: np.ndarray, *, z_lab
         legend=dict(orientation="h", yanchor="bottom", y=1.02, x=0, bgcolor="rgba(255,255,255,0.8)",
                     font=dict(size=font - 4 if presentation else font - 1), maxheight=0.14, entrywidthmode="pixels",
                     itemwidth=30),
-        uirevision="plane",
+        # the plot keeps the user's zoom and legend clicks until the plane's ranges change (a zoom writes
+        # the range boxes, so the new plane comes with its own ranges; the reset button and typed ranges
+        # show); keyed on the ends of the grid, so a coarse preview and the full map share it
+        uirevision="plane {:.6g} {:.6g} {:.6g} {:.6g}".format(*_edges(log_rho), *_edges(log_T)),
     )
     return fig
 

@@ -46,15 +46,39 @@ def _message(id_):
     return html.Div(id=id_, className="message", role="alert", **{"aria-live": "polite"})
 
 
+def _slider_value(value):
+    """The slider position for a number-box value (the box may hold anything; the slider only 0–1)."""
+    try:
+        x = float(value)
+    except (TypeError, ValueError):
+        return None
+    return min(max(x, 0.0), 1.0) if x == x else None
+
+
+def _fraction_row(key: str, value, title: str) -> html.Div:
+    """A mass-fraction number box with a slider beside it. The box is the source of truth (it is in the
+    view and the URL); the slider follows it, and moving the slider writes the box (see the clientside
+    ``syncSliders`` in assets/thermoplane.js): while the hand moves the map is drawn coarse, on release
+    at full resolution."""
+    return html.Div([
+        _number(f"comp-{key}", value, label=key, title=title),
+        html.Div(dcc.Slider(id=f"comp-{key}-slider", min=0, max=1, step=0.005, value=_slider_value(value),
+                            updatemode="mouseup", marks={0: "0", 0.5: "0.5", 1: "1"},
+                            allow_direct_input=False, className="fraction-slider"),
+                 className="slider-box", title=f"drag to change {key}"),
+    ], className="field-row fraction-row")
+
+
 def composition_panel(c: dict) -> html.Section:
     nuclides = [{"label": n, "value": n} for n in ph.NUCLIDES]
     return html.Section([
         html.H3("Composition"),
         html.P("Mass fractions of hydrogen (X), helium (Y) and metals (Z) add up to 1: tick "
                "“Z = 1 − X − Y” to let Z follow, or press “normalise”.", className="hint"),
-        html.Div([_number("comp-X", c["X"], label="X", title="hydrogen (H-1) mass fraction"),
-                  _number("comp-Y", c["Y"], label="Y", title="helium (He-4) mass fraction"),
-                  _number("comp-Z", c["Z"], label="Z", title="metal mass fraction")], className="field-row"),
+        _fraction_row("X", c["X"], "hydrogen (H-1) mass fraction"),
+        _fraction_row("Y", c["Y"], "helium (He-4) mass fraction"),
+        _fraction_row("Z", c["Z"], "metal mass fraction"),
+        dcc.Store(id="comp-drag", data={"drag": False}),
         html.Div([dcc.Checklist(id="comp-zauto", options=[{"label": " Z = 1 − X − Y", "value": "auto"}],
                                 value=c["zauto"], inline=True, className="check"),
                   html.Button("normalise", id="comp-normalise", n_clicks=0, className="small",
@@ -126,6 +150,7 @@ def map_controls_panel(c: dict) -> html.Section:
                   _number("map-resolution", c["resolution"], 10, *UI_RESOLUTION, label="pixels",
                           title=f"pixels per side, {UI_RESOLUTION[0]}–{UI_RESOLUTION[1]}")], className="field-row"),
         _message("map-range-message"),
+        _message("map-zoom-message"),
         _message("map-message"),
     ], className="panel", id="panel-map")
 

@@ -51,6 +51,68 @@ window.dash_clientside = Object.assign({}, window.dash_clientside, {
       if (row === null || !isFinite(row)) { return [nu, nu]; }
       return [row, id];
     },
+    /* Sliders beside the X, Y, Z boxes. The boxes are the source of truth (the map and the URL read
+       them). sliderToBox: a slider's drag_value (while the hand moves) writes its box and marks the drag
+       in the "comp-drag" store, so the map draws a coarse preview; its value (on release) writes the box
+       and ends the drag, so the map draws at full resolution. boxToSlider: a box typed by hand moves its
+       slider (not while that slider's hand is moving). Two callbacks, never a loop: each writes only what
+       differs from what is there. */
+    sliderToBox: function (dx, dy, dz, sx, sy, sz, figure, bx, by, bz, drag) {
+      var nu = window.dash_clientside.no_update;
+      var keys = ["X", "Y", "Z"], boxes = [bx, by, bz], drags = [dx, dy, dz], sliders = [sx, sy, sz];
+      var out = [nu, nu, nu, nu];
+      var trig = (window.dash_clientside.callback_context.triggered || []).map(function (t) { return t.prop_id; });
+      var dragging = !!(drag && drag.drag);
+      var same = function (a, b) { return typeof a === "number" && typeof b === "number" && Math.abs(a - b) < 1e-12; };
+      var tidy = function (v) { return Math.round(v * 1e6) / 1e6; };   /* 0.30000000000000004 -> 0.3 */
+      var now = Date.now(), k, i;
+      /* Flow control: while a preview is on its way, further drag positions wait (a newer request would
+         make the browser drop the one in flight, and nothing would be drawn until the hand stops); the
+         next preview asks for the latest position when the map arrives (or after 1.5 s without one). */
+      var busy = function () { return window.__tpPreview && now - window.__tpPreview < 1500; };
+      /* release first: the slider may report its last drag_value together with its value */
+      for (i = 0; i < 3; i++) {
+        k = keys[i];
+        if (trig.indexOf("comp-" + k + "-slider.value") >= 0 && typeof sliders[i] === "number") {
+          window.__tpPreview = 0;
+          if (!same(tidy(sliders[i]), boxes[i])) { out[i] = tidy(sliders[i]); }
+          if (dragging || out[i] !== nu) { out[3] = {drag: false, key: k, t: now}; }
+          return out;
+        }
+      }
+      var ack = trig.indexOf("plane-graph.figure") >= 0;
+      if (ack) { window.__tpPreview = 0; }
+      for (i = 0; i < 3; i++) {
+        k = keys[i];
+        var moved = trig.indexOf("comp-" + k + "-slider.drag_value") >= 0 || (ack && dragging && drag.key === k);
+        if (moved && typeof drags[i] === "number") {
+          /* a drag_value equal to the slider's value is the release echoed, not a hand that moves */
+          if (same(drags[i], sliders[i])) { return out; }
+          if (!same(tidy(drags[i]), boxes[i]) && !busy()) {
+            window.__tpPreview = now;
+            out[i] = tidy(drags[i]);
+            out[3] = {drag: true, key: k, t: now};
+          }
+          return out;
+        }
+      }
+      return out;
+    },
+    boxToSlider: function (bx, by, bz, sx, sy, sz, drag) {
+      var nu = window.dash_clientside.no_update;
+      var keys = ["X", "Y", "Z"], boxes = [bx, by, bz], sliders = [sx, sy, sz];
+      var out = [nu, nu, nu];
+      var dragging = !!(drag && drag.drag);
+      for (var i = 0; i < 3; i++) {
+        if (dragging && drag.key === keys[i]) { continue; }   /* the box follows this slider's hand */
+        var v = Number(boxes[i]);
+        if (boxes[i] !== null && boxes[i] !== "" && isFinite(v)) {
+          v = Math.min(Math.max(v, 0), 1);
+          if (!(typeof sliders[i] === "number" && Math.abs(v - sliders[i]) < 1e-12)) { out[i] = v; }
+        }
+      }
+      return out;
+    },
     writeUrl: function (store) {
       if (!store || store.query === undefined) { return window.dash_clientside.no_update; }
       var url = window.location.pathname + store.query;

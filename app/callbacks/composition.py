@@ -165,7 +165,7 @@ def register(app) -> None:
         Output("comp-X", "value", allow_duplicate=True), Output("comp-Y", "value", allow_duplicate=True),
         Output("comp-Z", "value", allow_duplicate=True), Output("comp-Z", "disabled"),
         Output("comp-mix-table", "data", allow_duplicate=True),
-        Output("comp-rule-message", "children"),
+        Output("comp-rule-message", "children"), Output("comp-Z-slider", "disabled"),
         Input("comp-X", "value"), Input("comp-Y", "value"), Input("comp-zauto", "value"),
         Input("comp-normalise", "n_clicks"),
         State("comp-Z", "value"), State("comp-mix-table", "data"), State("comp-mix-on", "value"),
@@ -174,11 +174,33 @@ def register(app) -> None:
     def _rules(X, Y, zauto, _n, Z, rows, mix_on):
         try:
             table = rows if ("on" in (mix_on or ()) and rows) else None
-            return apply_rules(ctx.triggered_id, X, Y, Z, zauto, table)
+            out = apply_rules(ctx.triggered_id, X, Y, Z, zauto, table)
+            return (*out, out[3])              # the Z slider is disabled with the Z box
         except Exception:                      # never a traceback in the page
             import logging
             logging.getLogger(__name__).exception("composition rule failed")
-            return no_update, no_update, no_update, no_update, no_update, "Something went wrong; see the server log."
+            return (no_update, no_update, no_update, no_update, no_update,
+                    "Something went wrong; see the server log.", no_update)
+
+    # Sliders beside the X, Y, Z boxes, synced in the browser (no round trip while the hand moves).
+    app.clientside_callback(
+        "function(){ return window.dash_clientside.thermoplane.sliderToBox.apply(null, arguments); }",
+        *(Output(f"comp-{k}", "value", allow_duplicate=True) for k in "XYZ"),
+        Output("comp-drag", "data"),
+        *(Input(f"comp-{k}-slider", "drag_value") for k in "XYZ"),
+        *(Input(f"comp-{k}-slider", "value") for k in "XYZ"),
+        Input("plane-graph", "figure"),                # a map arrived: the next preview may go
+        *(State(f"comp-{k}", "value") for k in "XYZ"),
+        State("comp-drag", "data"),
+        prevent_initial_call=True,
+    )
+    app.clientside_callback(
+        "function(){ return window.dash_clientside.thermoplane.boxToSlider.apply(null, arguments); }",
+        *(Output(f"comp-{k}-slider", "value") for k in "XYZ"),
+        *(Input(f"comp-{k}", "value") for k in "XYZ"),
+        *(State(f"comp-{k}-slider", "value") for k in "XYZ"),
+        State("comp-drag", "data"),
+    )
 
     @app.callback(Output("comp-mix-table", "data", allow_duplicate=True),
                   Input("comp-mix-add", "n_clicks"), State("comp-mix-table", "data"),

@@ -10,7 +10,7 @@ from __future__ import annotations
 import logging
 
 import numpy as np
-from dash import Input, Output, State, no_update
+from dash import Input, Output, State, ctx, no_update
 
 from ... import physics as ph
 from ...physics import impact, plane, regimes
@@ -20,11 +20,12 @@ from ..state import COLOR_CHOICES, CONTROLS, DEFAULT_VIEW, controls_to_view, enc
 from ..view import (ASINH_SCALES, ViewError, _range, composition_from_inputs, jsonable, overlay_lines, parse_view,  # noqa: F401
                     physics_options, quantity, track_overlay, view_from_store)
 from . import layers
-from .composition import readout
+from .composition import number, readout
 
 log = logging.getLogger(__name__)
 
-__all__ = ["MESSAGES", "ViewError", "parse_view", "physics_options", "map_figure", "update_map",
+__all__ = ["MESSAGES", "ViewError", "parse_view", "physics_options", "map_figure", "update_map", "is_preview",
+           "PREVIEW_RESOLUTION", "zoom_ranges",
            "composition_from_inputs", "quantity", "register"]
 
 #: Message areas, each next to the controls whose errors it shows.
@@ -214,11 +215,25 @@ def map_figure(comp: ph.Composition, view: dict = DEFAULT_VIEW, extra_traces=())
     return fig
 
 
+#: Pixels per side of the coarse map drawn while a composition slider moves (the chosen resolution if lower).
+PREVIEW_RESOLUTION = 100
+#: The only changes a preview may answer: the drag itself and the X, Y, Z boxes it writes.
+PREVIEW_TRIGGERS = frozenset({"comp-drag.data", "comp-X.value", "comp-Y.value", "comp-Z.value"})
+
+
+def is_preview(drag, triggered) -> bool:
+    """Whether this redraw is a coarse preview: a composition slider is held (the "comp-drag" store says
+    so) and nothing but the drag and the boxes it writes changed. Any other control draws in full."""
+    held = isinstance(drag, dict) and bool(drag.get("drag"))
+    triggered = set(triggered or ())
+    return held and bool(triggered) and triggered <= PREVIEW_TRIGGERS
+
+
 def _empty_messages() -> dict:
     return {m: "" for m in MESSAGES}
 
 
-def update_map(tracks=None, track_colour_by=None, **controls) -> dict:
+def update_map(tracks=None, track_colour_by=None, preview=False, **controls) -> dict:
     """Callback body: control values (keyed like state.CONTROLS) -> outputs dict.
 
     ``tracks`` is the tracks store (drawn over the map, so they survive every
@@ -227,16 +242,21 @@ def update_map(tracks=None, track_colour_by=None, **controls) -> dict:
     Outputs: "figure" (or no_update: the last good map stays), "readout",
     "view" (the checked view with its URL query, for sharing and export) and
     one text per message area of :data:`MESSAGES`.
+
+    ``preview`` (a slider is moving): the map is drawn with at most :data:`PREVIEW_RESOLUTION` pixels per
+    side and the view (URL, point, tracks readouts) is left alone until the full map follows.
     """
     out = {"figure": no_update, "readout": no_update, "view": no_update, **_empty_messages()}
     try:
         view = controls_to_view(**controls)
         comp, opts, clean = parse_view(view)
         out["readout"] = readout(comp)
-        fig, grid, messages = build(comp, opts, clean, track_overlay(tracks, track_colour_by, comp, opts, clean))
+        drawn = {**clean, "resolution": min(int(clean["resolution"]), PREVIEW_RESOLUTION)} if preview else clean
+        fig, grid, messages = build(comp, opts, drawn, track_overlay(tracks, track_colour_by, comp, opts, drawn))
         out.update(messages)
         out["figure"] = fig
-        out["view"] = {"view": jsonable(clean), "query": encode_view(clean)}
+        if not preview:
+            out["view"] = {"view": jsonable(clean), "query": encode_view(clean)}
     except ViewError as err:
         out[err.where] = str(err)
     except ValueError as err:
@@ -247,6 +267,57 @@ def update_map(tracks=None, track_colour_by=None, **controls) -> dict:
     return out
 
 
+#: Decimals kept of a zoomed range (the URL stays readable; 1e-4 in log is far below a pixel).
+ZOOM_DECIMALS = 4
+
+
+def _axis_range(relayout: dict, axis: str):
+    """(lo, hi) a relayout event gives for ``axis`` ("xaxis"/"yaxis"), "auto" for an autorange, or None."""
+    if relayout.get(f"{axis}.autorange"):
+        return "auto"
+    pair = relayout.get(f"{axis}.range")
+    if not isinstance(pair, (list, tuple)) or len(pair) != 2:
+        pair = (relayout.get(f"{axis}.range[0]"), relayout.get(f"{axis}.range[1]"))
+    if pair[0] is None or pair[1] is None:
+        return None
+    lo, hi = sorted(number(v, axis) for v in pair)
+    return lo, hi
+
+
+def zoom_ranges(relayout) -> tuple:
+    """Callback body: a zoom or pan on the map -> (log ρ from, to, log T from, to, message).
+
+    The range boxes are the view (and the URL), so writing them recomputes the plane at full resolution for
+    the new ranges. A range beyond the allowed limits is clamped to them and the message says so, in the
+    words of the range check; an autorange (double click) goes back to the ranges in the boxes, so it
+    changes nothing. Untouched values are ``no_update``.
+    """
+    out = [no_update] * 4 + [no_update]
+    if not isinstance(relayout, dict):
+        return tuple(out)
+    notes = []
+    try:
+        for i, (axis, name, limits) in enumerate((("xaxis", "log ρ", plane.LOG_RHO_LIMITS),
+                                                  ("yaxis", "log T", plane.LOG_T_LIMITS))):
+            r = _axis_range(relayout, axis)
+            if r is None or r == "auto":
+                continue
+            lo, hi = (round(v, ZOOM_DECIMALS) for v in r)
+            for which, v in (("from", lo), ("to", hi)):
+                if not limits[0] <= v <= limits[1]:
+                    notes.append(f"{name} {which} = {v:g} must be between {limits[0]:g} and {limits[1]:g}; "
+                                 "the zoom stops there")
+            lo, hi = min(max(lo, limits[0]), limits[1]), min(max(hi, limits[0]), limits[1])
+            if not hi > lo:
+                notes.append(f"{name}: the zoomed range is too narrow; the map stays")
+                continue
+            out[2 * i], out[2 * i + 1] = lo, hi
+    except ValueError as err:
+        return tuple([no_update] * 4 + [str(err)])
+    out[4] = " ".join(notes)
+    return tuple(out)
+
+
 def register(app) -> None:
     outputs = {"figure": Output("plane-graph", "figure"), "readout": Output("comp-readout", "children"),
                "view": Output("view-store", "data"),
@@ -254,7 +325,18 @@ def register(app) -> None:
     inputs = {k: Input(cid, prop) for k, (cid, prop) in CONTROLS.items()}
     inputs["tracks"] = Input("tracks-store", "data")
     inputs["track_colour_by"] = Input("tracks-colour-by", "value")
-    app.callback(output=outputs, inputs=inputs)(update_map)
+    inputs["drag"] = Input("comp-drag", "data")
+
+    def _map(drag=None, **controls):
+        return update_map(preview=is_preview(drag, ctx.triggered_prop_ids), **controls)
+
+    app.callback(output=outputs, inputs=inputs)(_map)
+
+    # Zoom and pan recompute the plane: the new ranges go into the range boxes (the view and the URL).
+    app.callback(Output("map-rho-lo", "value", allow_duplicate=True), Output("map-rho-hi", "value", allow_duplicate=True),
+                 Output("map-T-lo", "value", allow_duplicate=True), Output("map-T-hi", "value", allow_duplicate=True),
+                 Output("map-zoom-message", "children"),
+                 Input("plane-graph", "relayoutData"), prevent_initial_call=True)(zoom_ranges)
 
     # Hover readout, in the browser: value, (rho, T) and regime name of the pixel.
     app.clientside_callback(

@@ -375,3 +375,78 @@ def test_grid_csv_names_the_dominant_neutrino_process():
     rows = export.grid_csv(grid, "nu_process", "dominant neutrino process").splitlines()[2:]
     values = {r.split(",")[2] for r in rows}
     assert values <= {"pair", "photo", "plasma", "bremsstrahlung", ""} and "pair" in values
+
+
+# -- sliders and progressive drawing ----------------------------------------------------------------------
+
+def test_preview_only_while_a_slider_is_held_and_only_for_the_boxes_it_writes():
+    held, free = {"drag": True, "key": "X"}, {"drag": False}
+    assert map_cb.is_preview(held, ["comp-X.value", "comp-drag.data"])
+    assert map_cb.is_preview(held, ["comp-Z.value"])               # Z following X by the sum rule
+    assert not map_cb.is_preview(free, ["comp-drag.data"])         # the hand let go: full resolution
+    assert not map_cb.is_preview(held, ["comp-X.value", "map-quantity.value"])
+    assert not map_cb.is_preview(None, ["comp-X.value"])
+    assert not map_cb.is_preview(held, [])
+
+
+def test_preview_draws_coarse_and_leaves_the_view_alone():
+    c = controls(resolution=300)
+    out = map_cb.update_map(preview=True, **c)
+    assert heatmap(out["figure"]).z.shape == (map_cb.PREVIEW_RESOLUTION, map_cb.PREVIEW_RESOLUTION)
+    assert out["view"] is no_update                                 # URL and readouts wait for the full map
+    assert out["readout"].startswith("μ = ")
+    low = map_cb.update_map(preview=True, **controls(resolution=60))   # below the preview size: as chosen
+    assert heatmap(low["figure"]).z.shape == (60, 60)
+    full = map_cb.update_map(**c)
+    assert heatmap(full["figure"]).z.shape == (300, 300)
+    assert full["view"]["view"]["resolution"] == 300
+
+
+def test_preview_keeps_the_sum_rule_message():
+    out = map_cb.update_map(preview=True, **controls(X=0.3, zauto=False))
+    assert out["figure"] is no_update
+    assert "the sum must be 1" in out["comp-message"]
+
+
+def test_sliders_sit_beside_the_boxes():
+    from thermoplane.app.layout import build_layout
+    from thermoplane.app.layout import _slider_value
+    text = str(build_layout())
+    for k in "XYZ":
+        assert f"comp-{k}-slider" in text
+    assert _slider_value(0.7) == 0.7 and _slider_value("x") is None and _slider_value(1.5) == 1.0
+
+
+# -- zoom and pan ------------------------------------------------------------------------------------------
+
+def test_zoom_writes_the_range_boxes():
+    out = map_cb.zoom_ranges({"xaxis.range[0]": -2.123456, "xaxis.range[1]": 3.5,
+                              "yaxis.range[0]": 5.25, "yaxis.range[1]": 7.0})
+    assert out == (-2.1235, 3.5, 5.25, 7.0, "")
+    pan = map_cb.zoom_ranges({"xaxis.range": [1.0, 4.0]})           # a pan along ρ only
+    assert pan[:2] == (1.0, 4.0) and pan[2] is no_update and pan[3] is no_update
+
+
+def test_zoom_beyond_the_limits_is_clamped_with_a_message():
+    lo, hi = plane.LOG_RHO_LIMITS
+    out = map_cb.zoom_ranges({"xaxis.range[0]": lo - 3, "xaxis.range[1]": lo + 2})
+    assert out[:2] == (lo, lo + 2)
+    assert f"must be between {lo:g} and {hi:g}" in out[4]
+
+
+def test_autorange_and_other_relayouts_change_nothing():
+    for event in ({"xaxis.autorange": True, "yaxis.autorange": True}, {"autosize": True}, None,
+                  {"dragmode": "pan"}):
+        out = map_cb.zoom_ranges(event)
+        assert all(v is no_update for v in out[:4])
+    bad = map_cb.zoom_ranges({"xaxis.range[0]": "abc", "xaxis.range[1]": 2})
+    assert all(v is no_update for v in bad[:4]) and "not a number" in bad[4]
+
+
+def test_zoomed_ranges_recompute_the_plane():
+    out = map_cb.update_map(**controls(rho_lo=-2.0, rho_hi=3.5, T_lo=5.25, T_hi=7.0))
+    hm = heatmap(out["figure"])
+    assert hm.z.shape == (60, 60)
+    assert min(hm.x) == pytest.approx(-2.0) and max(hm.x) == pytest.approx(3.5)
+    assert min(hm.y) == pytest.approx(5.25) and max(hm.y) == pytest.approx(7.0)
+    assert encode_view({**VIEW, "log_rho": (-2.0, 3.5), "log_T": (5.25, 7.0)}) == out["view"]["query"]

@@ -21,6 +21,7 @@ def test_dockerfile_runs_gunicorn_as_non_root():
     assert re.search(r"^USER\s+(?!root)\S+", text, re.M)
     cmd = dockerfile_command()
     assert cmd[0] == "gunicorn" and "thermoplane.app.wsgi:server" in cmd
+    assert "--preload" in cmd               # the app (and its warm-up) loads once, before the workers fork
     assert "0.0.0.0:8050" in " ".join(cmd)
 
 
@@ -40,3 +41,12 @@ def test_gunicorn_serves_the_page():
             assert b"plane-graph" in r.read()
     finally:
         stop_process(proc)
+
+
+def test_warm_up_draws_a_tiny_default_map(caplog):
+    from thermoplane.app.main import WARM_UP_RESOLUTION, warm_up
+    from thermoplane.app.state import UI_RESOLUTION
+    assert UI_RESOLUTION[0] <= WARM_UP_RESOLUTION          # a resolution the map callback accepts
+    with caplog.at_level("WARNING"):
+        seconds = warm_up()
+    assert seconds > 0 and "warm-up map failed" not in caplog.text

@@ -1,0 +1,130 @@
+"""The map keeps up with the hand: dragging the X slider redraws the map while it moves (coarse), then in
+full on release; zooming into a box recomputes the plane for the new ranges and the URL follows."""
+
+from __future__ import annotations
+
+import time
+
+import pytest
+
+from tests.conftest import screenshot
+from tests.e2e.plotly_js import DECODE
+
+pytestmark = pytest.mark.e2e
+
+#: JS: (number of x values, first x, last x, number of y values) of the shaded heatmap, or null.
+HEATMAP = f"""() => {{ {DECODE}
+  const gd = document.querySelector('#plane-graph .js-plotly-plot');
+  if (!gd || !gd.data) return null;
+  const t = gd.data.find(d => d.type === 'heatmap');
+  if (!t) return null;
+  const x = decode(t.x), y = decode(t.y);
+  return [x.length, x[0], x[x.length - 1], y.length, y[0], y[y.length - 1]];
+}}"""
+
+#: JS: count every redraw of the map (a new figure from the server): poll the heatmap trace every 15 ms and
+#: note when it is a new object, with its number of x values.
+COUNT_REDRAWS = """() => {
+  window.__redraws = [];
+  let last = null;
+  const size = (v) => v === undefined || v === null ? 0 :
+      (v.bdata !== undefined ? atob(v.bdata).length / {f8: 8, f4: 4}[v.dtype] : v.length);
+  window.__poll = setInterval(() => {
+    const gd = document.querySelector('#plane-graph .js-plotly-plot');
+    const t = gd && gd.data ? gd.data.find(d => d.type === 'heatmap') : null;
+    if (!t) return;
+    if (last === null) { last = t; return; }
+    if (t !== last) { last = t; window.__redraws.push([performance.now(), size(t.x)]); }
+  }, 15);
+}"""
+
+
+def _full_map(pg, n=300, timeout=60000):
+    pg.wait_for_function(f"() => {{ const h = ({HEATMAP})(); return h && h[0] === {n}; }}", timeout=timeout)
+    return pg.evaluate(HEATMAP)
+
+
+def test_dragging_X_redraws_while_the_hand_moves(server_url, page):
+    page.goto(server_url)
+    _full_map(page)
+    page.check("#comp-zauto input")                      # Z follows X and Y, so every X keeps the sum 1
+    page.wait_for_function("() => document.querySelector('#comp-Z').disabled")
+    page.evaluate(COUNT_REDRAWS)
+    thumb = page.locator("#comp-X-slider [role=slider]")
+    track = page.locator("#comp-X-slider .dash-slider-track").bounding_box()
+    box = thumb.bounding_box()
+    y = box["y"] + box["height"] / 2
+    page.mouse.move(box["x"] + box["width"] / 2, y)
+    page.mouse.down()
+    t0 = time.monotonic()
+    steps = 24                                           # from X = 0.7 down to about 0.3 over ~3 s
+    x0, x1 = box["x"] + box["width"] / 2, track["x"] + 0.3 * track["width"]
+    for i in range(1, steps + 1):
+        page.mouse.move(x0 + (x1 - x0) * i / steps, y)
+        page.wait_for_timeout(120)
+    screenshot(page, "drag_during")
+    page.mouse.up()
+    during = time.monotonic() - t0
+    # the full map follows the last preview (maps drawn before the first preview are the tick's)
+    page.wait_for_function("""() => { const r = window.__redraws, i = r.findIndex(e => e[1] < 300);
+                                      return i >= 0 && r[r.length - 1][1] === 300 && r.length > i + 1; }""",
+                           timeout=60000)
+    page.wait_for_timeout(500)
+    redraws = page.evaluate("window.__redraws")
+    redraws = redraws[next(i for i, r in enumerate(redraws) if r[1] < 300):]
+    coarse = [r for r in redraws if r[1] < 300]
+    span = (coarse[-1][0] - coarse[0][0]) / 1000 if len(coarse) > 1 else during
+    print(f"\nX drag at 300 x 300: {len(coarse)} coarse (100 x 100) redraws in {during:.2f} s of dragging, "
+          f"{(len(coarse) - 1) / max(span, 1e-9):.1f} per second between the first and the last, then "
+          f"{len(redraws) - len(coarse)} full, {(redraws[-1][0] - coarse[-1][0]) / 1000:.2f} s after the last preview")
+    assert len(coarse) > 1                                # the map followed the hand, coarse
+    assert redraws[-1][1] == 300                          # and the last map is at full resolution
+    screenshot(page, "drag_after")
+    text = page.input_value("#comp-X")
+    X = float(text)
+    assert 0.25 < X < 0.4
+    assert abs(float(page.get_attribute("#comp-X-slider [role=slider]", "aria-valuenow")) - X) < 1e-9
+    assert abs(float(page.input_value("#comp-Z")) - (1 - X - 0.28)) < 1e-9     # the sum rule followed
+    page.wait_for_function(f"() => new URLSearchParams(window.location.search).get('X') === '{text}'",
+                           timeout=10000)
+    # the final map is the map of the final X: the readout (drawn with the map) gives this composition's μ
+    from thermoplane import physics as ph
+    comp = ph.Composition.from_xyz(X, 0.28, 1 - X - 0.28, metals="solar-like")
+    assert page.inner_text("#comp-readout").split()[2] == f"{comp.mu:.4f}"
+    assert page.console_errors == []
+
+
+def test_zooming_into_a_box_recomputes_the_plane(server_url, page):
+    page.goto(server_url)
+    before = _full_map(page)
+    area = page.locator("#plane-graph .nsewdrag").first.bounding_box()
+    # drag a box over the middle of the plot with the mouse (plotly's zoom)
+    x0, y0 = area["x"] + 0.40 * area["width"], area["y"] + 0.30 * area["height"]
+    x1, y1 = area["x"] + 0.70 * area["width"], area["y"] + 0.60 * area["height"]
+    page.mouse.move(x0, y0)
+    page.mouse.down()
+    page.mouse.move((x0 + x1) / 2, (y0 + y1) / 2, steps=4)
+    page.mouse.move(x1, y1, steps=4)
+    page.mouse.up()
+    page.wait_for_function("() => Number(document.querySelector('#map-rho-lo').value) > -9")
+    lo, hi = float(page.input_value("#map-rho-lo")), float(page.input_value("#map-rho-hi"))
+    tlo, thi = float(page.input_value("#map-T-lo")), float(page.input_value("#map-T-hi"))
+    # the box was 40–70 % across and 40–70 % up the old ranges (-10..10, 3..10)
+    assert abs(lo - (-10 + 0.4 * 20)) < 0.3 and abs(hi - (-10 + 0.7 * 20)) < 0.3
+    assert abs(tlo - (3 + 0.4 * 7)) < 0.2 and abs(thi - (3 + 0.7 * 7)) < 0.2
+    # the plane is recomputed for the new ranges at full resolution (not the old pixels stretched)
+    page.wait_for_function(f"""() => {{ const h = ({HEATMAP})();
+        return h && h[0] === 300 && Math.abs(h[1] - {lo}) < 1e-4 && Math.abs(h[2] - {hi}) < 1e-4
+               && Math.abs(h[4] - {tlo}) < 1e-4 && Math.abs(h[5] - {thi}) < 1e-4; }}""", timeout=60000)
+    after = page.evaluate(HEATMAP)
+    assert after[0] == before[0] == 300 and after[3] == 300
+    page.wait_for_function(f"""() => new URLSearchParams(window.location.search).get('log_rho') === '{lo:g},{hi:g}'
+                                     && new URLSearchParams(window.location.search).get('log_T') === '{tlo:g},{thi:g}'""",
+                           timeout=10000)
+    screenshot(page, "zoom_box")
+    # zooming out beyond the allowed ranges stops at the limits and says so
+    page.evaluate("""() => window.Plotly.relayout(document.querySelector('#plane-graph .js-plotly-plot'),
+                                                  {'xaxis.range[0]': -30, 'xaxis.range[1]': 5})""")
+    page.wait_for_selector("#map-zoom-message:has-text('must be between')")
+    page.wait_for_function("() => Number(document.querySelector('#map-rho-lo').value) < -9")
+    assert page.console_errors == []
