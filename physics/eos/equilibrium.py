@@ -437,6 +437,47 @@ def _jacobian(Rs, A, b, col):
 
 
 @njit(cache=True, error_model="numpy")
+def _zmax(nuc_Z):
+    """The largest charge of the composition (rows of the per-charge scratch)."""
+    z = 1
+    for i in range(nuc_Z.size):
+        z = max(z, nuc_Z[i])
+    return z
+
+
+@njit(cache=True, error_model="numpy")
+def _size(b, c):
+    """The size of the conditions b: the largest |R|, R3 relative to 1 + |c| (c can be ~1e5)."""
+    return max(max(abs(b[0]), abs(b[1])), max(abs(b[2]) / (1.0 + abs(c)), abs(b[3])))
+
+
+@njit(cache=True, error_model="numpy")
+def _cap(d, c):
+    """Limit a Newton step: 2 e-folds in the densities and in u, 1 + 2|c| in c."""
+    for q in (0, 1, 3):
+        if d[q] > 2.0:
+            d[q] = 2.0
+        elif d[q] < -2.0:
+            d[q] = -2.0
+    cap = 1.0 + 2.0 * abs(c)
+    if d[2] > cap:
+        d[2] = cap
+    elif d[2] < -cap:
+        d[2] = -cap
+
+
+@njit(cache=True, error_model="numpy")
+def _trial(y, d, lam, yt):
+    """yt = y - lam d, with u = -ln(1 - zeta) kept >= 0."""
+    yt[0] = y[0] - lam * d[0]
+    yt[1] = y[1] - lam * d[1]
+    if yt[1] < 0.0:
+        yt[1] = 0.5 * y[1]
+    yt[2] = y[2] - lam * d[2]
+    yt[3] = y[3] - lam * d[3]
+
+
+@njit(cache=True, error_model="numpy")
 def _shifted_electrons(el, d, out):
     """The electron data at y1 + d, to first order in d (for the line search between table calls)."""
     for k in range(4):
@@ -460,9 +501,7 @@ def _newton_step(y, lnrho, lnT, el, sp, h2tab, res):
     """
     nuc_N, nuc_Z, nuc_lnlam3, nuc_start, nuc_h2, st_E, st_lng, st_v, h2_v, h2_D0, coul_on = sp
     tx, ty, t1, t2 = h2tab
-    zmax = 1
-    for i in range(nuc_Z.size):
-        zmax = max(zmax, nuc_Z[i])
+    zmax = _zmax(nuc_Z)
     for p in prange(y.shape[0]):
         diag = np.empty(10)
         L = np.empty((zmax + 1, 17))
@@ -472,31 +511,17 @@ def _newton_step(y, lnrho, lnT, el, sp, h2tab, res):
         A = np.empty((4, 4))
         b = np.empty(4)
         _jacobian(Rs, A, b, 0)
-        res[p] = max(max(abs(b[0]), abs(b[1])), max(abs(b[2]) / (1.0 + abs(y[p, 2])), abs(b[3])))
+        res[p] = _size(b, y[p, 2])
         if res[p] < _NEWTON_TOL:
             continue
         d = _solve(A, b)
-        for q in (0, 1, 3):
-            if d[q] > 2.0:
-                d[q] = 2.0
-            elif d[q] < -2.0:
-                d[q] = -2.0
-        cap = 1.0 + 2.0 * abs(y[p, 2])
-        if d[2] > cap:
-            d[2] = cap
-        elif d[2] < -cap:
-            d[2] = -cap
+        _cap(d, y[p, 2])
         m0 = _merit(Rs)
         yt = np.empty(4)
         elt = np.empty(12)
         lam = 1.0
         for _ in range(12):
-            yt[0] = y[p, 0] - lam * d[0]
-            yt[1] = y[p, 1] - lam * d[1]
-            if yt[1] < 0.0:
-                yt[1] = 0.5 * y[p, 1]
-            yt[2] = y[p, 2] - lam * d[2]
-            yt[3] = y[p, 3] - lam * d[3]
+            _trial(y[p], d, lam, yt)
             _shifted_electrons(el[p], yt[0] - y[p, 0], elt)
             o = _point(yt, lnrho[p], lnT[p], elt, nuc_N, nuc_Z, nuc_lnlam3, nuc_start, nuc_h2, st_E,
                        st_lng, st_v, h2_v, h2_D0, coul_on, tx, ty, t1, t2, diag, L)
@@ -512,9 +537,7 @@ def _newton_step(y, lnrho, lnT, el, sp, h2tab, res):
 def _starts(lnrho, lnT, sp, h2tab, y):
     nuc_N, nuc_Z, nuc_lnlam3, nuc_start, nuc_h2, st_E, st_lng, st_v, h2_v, h2_D0, coul_on = sp
     tx, ty, t1, t2 = h2tab
-    zmax = 1
-    for i in range(nuc_Z.size):
-        zmax = max(zmax, nuc_Z[i])
+    zmax = _zmax(nuc_Z)
     for p in prange(y.shape[0]):
         L = np.empty(zmax + 1)
         _ideal_saha_start(lnrho[p], lnT[p], nuc_N, nuc_Z, nuc_start, nuc_h2, st_E, st_lng, st_v, h2_v, h2_D0,
@@ -535,7 +558,7 @@ def _final_one(y, lnrho, lnT, el, sp, h2tab, diag, out, W):
     A = np.empty((4, 4))
     b = np.empty(4)
     _jacobian(Rs, A, b, 0)
-    out[9] = max(max(abs(b[0]), abs(b[1])), max(abs(b[2]) / (1.0 + abs(y[2])), abs(b[3])))
+    out[9] = _size(b, y[2])
     # dy/dx = -A^-1 dR/dx for x = ln rho (seed 5) and ln T (seed 6)
     _jacobian(Rs, A, b, 5)
     yr = _solve(A, b)
@@ -550,9 +573,7 @@ def _final_one(y, lnrho, lnT, el, sp, h2tab, diag, out, W):
 @njit(cache=True, parallel=True, error_model="numpy")
 def _final(y, lnrho, lnT, el, sp, h2tab, diag, out):
     """:func:`_final_one` at every point, with the electron data given (numpy path)."""
-    zmax = 1
-    for i in range(sp[1].size):
-        zmax = max(zmax, sp[1][i])
+    zmax = _zmax(sp[1])
     for p in prange(y.shape[0]):
         W = np.empty((zmax + 1, 17))
         _final_one(y[p], lnrho[p], lnT[p], el[p], sp, h2tab, diag[p], out[p], W)
@@ -587,7 +608,7 @@ def _newton_point(y, lnrho, lnT, classical, etab, sp, h2tab, W, diag, el):
                    h2_v, h2_D0, coul_on, tx, ty, t1, t2, diag, W)
         Rs = (o[0], o[1], o[2], o[3])
         _jacobian(Rs, A, b, 0)
-        res = max(max(abs(b[0]), abs(b[1])), max(abs(b[2]) / (1.0 + abs(y[2])), abs(b[3])))
+        res = _size(b, y[2])
         if res < _NEWTON_TOL:
             return it
         if not math.isfinite(res):
@@ -600,25 +621,11 @@ def _newton_point(y, lnrho, lnT, classical, etab, sp, h2tab, W, diag, el):
             if stall > 6:
                 return -1
         d = _solve(A, b)
-        for q in (0, 1, 3):
-            if d[q] > 2.0:
-                d[q] = 2.0
-            elif d[q] < -2.0:
-                d[q] = -2.0
-        cap = 1.0 + 2.0 * abs(y[2])
-        if d[2] > cap:
-            d[2] = cap
-        elif d[2] < -cap:
-            d[2] = -cap
+        _cap(d, y[2])
         m0 = _merit(Rs)
         lam = 1.0
         for _ in range(8):
-            yt[0] = y[0] - lam * d[0]
-            yt[1] = y[1] - lam * d[1]
-            if yt[1] < 0.0:
-                yt[1] = 0.5 * y[1]
-            yt[2] = y[2] - lam * d[2]
-            yt[3] = y[3] - lam * d[3]
+            _trial(y, d, lam, yt)
             if _electrons(yt[0], T, classical, etab, elt):
                 ot = _point(yt, lnrho, lnT, elt, nuc_N, nuc_Z, nuc_lnlam3, nuc_start, nuc_h2, st_E, st_lng,
                             st_v, h2_v, h2_D0, coul_on, tx, ty, t1, t2, diag, W)
@@ -699,9 +706,7 @@ def _solve_points(lnrho, lnT, classical, etab, sp, h2tab, Y, status):
     """
     nuc_N, nuc_Z, nuc_lnlam3, nuc_start, nuc_h2, st_E, st_lng, st_v, h2_v, h2_D0, coul_on = sp
     tx, ty, t1, t2 = h2tab
-    zmax = 1
-    for i in range(nuc_Z.size):
-        zmax = max(zmax, nuc_Z[i])
+    zmax = _zmax(nuc_Z)
     for p in prange(lnrho.size):
         W = np.empty((zmax + 1, 17))
         L1 = np.empty(zmax + 1)
@@ -749,9 +754,7 @@ def _final_points(Y, lnrho, lnT, classical, etab, sp, h2tab, diag, out, elo):
     """P, E, S and their derivatives at the roots Y (see :func:`_final`), with the electron data."""
     nuc_N, nuc_Z, nuc_lnlam3, nuc_start, nuc_h2, st_E, st_lng, st_v, h2_v, h2_D0, coul_on = sp
     tx, ty, t1, t2 = h2tab
-    zmax = 1
-    for i in range(nuc_Z.size):
-        zmax = max(zmax, nuc_Z[i])
+    zmax = _zmax(nuc_Z)
     for p in prange(Y.shape[0]):
         W = np.empty((zmax + 1, 17))
         if not _electrons(Y[p, 0], math.exp(lnT[p]), classical, etab, elo[p]):
