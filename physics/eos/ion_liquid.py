@@ -37,17 +37,11 @@ from numba import njit
 
 from . import jet
 from .ion_solid import HARMONIC_CLASSICAL, MADELUNG_BCC, harmonic_quantum_correction
+from ..coulomb import A1, A2, A3, B1, B2, B3, B4   # the liquid fit's coefficients, kept in one place
 from .plasma_parameters import coupling, ideal_ion, quantum
 
 __all__ = ["ocp_liquid", "liquid_ion", "liquid_ion_free_energy"]
 
-A1 = -0.9070
-A2 = 0.62954
-A3 = -math.sqrt(3.0) / 2.0 - A1 / math.sqrt(A2)
-B1 = 0.00456
-B2 = 211.6
-B3 = -1.0e-4
-B4 = 0.00462
 #: eta at which the liquid's classical excess over the lattice is halved (our choice; see above)
 ETA_FADE = 3.0
 #: below this eta the quantum correction is its Wigner–Kirkwood term alone
