@@ -38,8 +38,10 @@ import numpy as np
 from . import constants as const
 from .composition import Composition
 from .electron_table import _merge, onset_state, table_eta, table_state
+from .electron_fast import pair_free_state
 from .electrons import _CN, ElectronGas, ElectronState
 from .ionization import ELEMENTS, ionization_stages
+from .saha_kernel import solve_saha_compiled
 from .thermo import Part
 
 __all__ = ["MatterResult", "matter"]
@@ -89,24 +91,30 @@ def _positron_bound(eta, T):
 def fermi_state(n, T, pairs: bool) -> ElectronState:
     """The Fermi–Dirac electron(–positron) gas at net density n and T, fast where it can be.
 
-    Without pairs: the pair-free table (physics.electron_table). With pairs: the same table where
-    positrons are negligible (bound above), the pair table in the hot pair plasma, and the fine
+    Without pairs: the pair-free table (compiled over the map, physics.electron_fast). With pairs: the same
+    where positrons are negligible (bound above), the pair table in the hot pair plasma, and the fine
     pair-onset tables (physics.electron_table.onset_state, exact quadrature outside them) in
     between, where the main pair table is not accurate enough.
     Each point's values come from one consistent source.
     """
+    st0 = pair_free_state(n, T)
     if not pairs:
-        return table_state(n, T, pairs=False)
-    # eta alone decides which points need positrons; the full state is formed once per point
-    eta0, _ = table_eta(n, T, pairs=False)
-    need = _positron_bound(eta0, T) > NEGLIGIBLE_POSITRONS * n
+        return st0
+    # eta alone decides which points need positrons; their state is formed again with pairs
+    need = _positron_bound(st0.eta, T) > NEGLIGIBLE_POSITRONS * n
     if not np.any(need):
-        return table_state(n, T, pairs=False)
+        return st0
     hot = need & (T >= 10.0**PAIR_TABLE_LOG_T)
     onset = need & ~hot
-    return _merge(n.size, [(~need, lambda nn, tt: table_state(nn, tt, pairs=False)),
+    keep = ~need
+    return _merge(n.size, [(keep, lambda nn, tt: _subset(st0, keep)),
                            (hot, lambda nn, tt: table_state(nn, tt, pairs=True)),
                            (onset, onset_state)], n, T)
+
+
+def _subset(st: ElectronState, mask) -> ElectronState:
+    return ElectronState(gas=ElectronGas(*(a[mask] for a in st.gas)),
+                         **{k: getattr(st, k)[mask] for k in ElectronState._fields[1:]})
 
 
 def _eta_at(n, T, electrons: str, pairs: bool):
@@ -236,6 +244,12 @@ def matter(rho, T, comp: Composition, electrons: str, ionization: str, pairs: bo
         st_full = electrons_at(n_full, t, electrons, pairs)
         n_free0 = _free_electrons(_stages(saha, st_full.eta, t, n_full), saha, fixed, r)[0]
         incomplete = np.flatnonzero(np.log(n_full) - np.log(n_free0) > _NEWTON_TOL)
+        if incomplete.size and electrons == "fermi":
+            # compiled per point where the pair-free table holds the root; the numpy passes for the rest
+            n_c, ok = solve_saha_compiled(n_full[incomplete], r[incomplete], t[incomplete], saha, fixed,
+                                          ELEMENTS, pairs)
+            n_e[incomplete[ok]] = n_c[ok]
+            incomplete = incomplete[~ok]
         if incomplete.size:
             n_e[incomplete] = _solve_saha(n_full[incomplete], r[incomplete], t[incomplete],
                                           saha, fixed, electrons, pairs)

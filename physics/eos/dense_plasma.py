@@ -26,12 +26,13 @@ from __future__ import annotations
 import math
 
 import numpy as np
-from numba import njit
+from numba import njit, prange
 
 from .. import constants as const
 from ..thermo import Part
 from . import jet
 from .electron_xc import electron_xc
+from .parallel import serialized
 from .ion_liquid import liquid_ion
 from .ion_solid import solid_ion
 from .plasma_parameters import coupling
@@ -94,9 +95,9 @@ def mixture_chosen(n_e, T, Z, A, x):
     return _mixture(n_e, T, Z, A, x, False)
 
 
-@njit(cache=True)
+@njit(cache=True, parallel=True)
 def _many(n_e, T, Z, A, x, liq, sol, ion, flag, ele, both):
-    for i in range(n_e.size):
+    for i in prange(n_e.size):
         a, b, c, d, e = _mixture(n_e[i], T[i], Z, A, x, both)
         liq[:, i] = a
         sol[:, i] = b
@@ -105,6 +106,7 @@ def _many(n_e, T, Z, A, x, liq, sol, ion, flag, ele, both):
         ele[:, i] = e
 
 
+@serialized
 def mixture_free_energy(n_e, T, Z, A, x, both=True):
     """Vectorised :func:`mixture` over arrays n_e, T (broadcast); Z, A, x 1-d arrays of the species.
 

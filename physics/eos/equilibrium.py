@@ -58,6 +58,7 @@ from ..composition import Composition
 from . import jets as J
 from .coulomb_term import ion_coulomb
 from .electron_kernel import classical_point, electron_arrays, electron_point
+from .parallel import serialized
 from .hermite import quintic
 from .species import H2_TABLE, Species, species_for
 
@@ -928,6 +929,7 @@ def _numpy_path(idx, lnrho, lnT, T, electrons, pairs, pk, start_full=True):
     return y, out, diag, el, n_minus, n_plus, ok
 
 
+@serialized
 def solve_equilibrium(rho, T, comp: Composition, electrons: str = "fermi", pairs: bool = True,
                       coulomb: bool = True) -> Equilibrium:
     """The chemical equilibrium of ``comp`` at every (rho, T) (1-D float arrays of one length).

@@ -1,0 +1,180 @@
+"""The free-electron density of the Saha equilibrium, solved point by point in a compiled kernel.
+
+The question this module answers: at (rho, T), what electron density n_e satisfies charge neutrality,
+ln n_e = ln n_free(eta(n_e, T)), when hydrogen and helium follow the Saha equation with the pressure-
+ionization rule of :mod:`thermoplane.physics.ionization`?
+
+It is the same equation, bracket and safeguarded Newton steps as ``matter._solve_saha`` (which stays for
+the points this kernel hands back), run per point inside numba instead of as whole-array numpy passes:
+the electron gas is the pair-free table read by :func:`~thermoplane.physics.eos.electron_kernel.electron_point`
+(agreeing with the numpy table to rounding), and the stage fractions are those of
+:func:`~thermoplane.physics.ionization.ionization_stages` written for one point. Only the root n_e comes
+from here; every thermodynamic quantity is then formed at that root by the numpy code, so nothing
+downstream changes but the last bits of n_e (the tolerance of both solvers is 1e-13 in ln n_e).
+
+A point is handed back (``ok`` False) where the table does not hold it (T outside the table, or a root
+below its lowest density, 1e4 cm^-3, where the numpy state uses the exact quadrature) or where positrons are
+not negligible at the root (the pair-free table does not describe them).
+"""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+from numba import njit, prange
+
+from . import constants as const
+from .electrons import _CN
+from .eos.electron_kernel import electron_arrays, electron_point
+from .eos.parallel import serialized
+from .ionization import MARGIN, S_COMPLETE, S_ONSET, THERMAL_DESTRUCTION_T, BOHR_RADIUS
+
+__all__ = ["solve_saha_compiled"]
+
+_K = const.k_B
+_THETA = const.k_B / const.m_e_c2
+_PACK = (4.0 * math.pi / 3.0) * BOHR_RADIUS**3
+_WIDTH = math.log(S_COMPLETE / S_ONSET)
+_TOL = 1e-13
+_MAX_ITER = 80
+
+
+@njit(cache=True, error_model="numpy")
+def _step_b(s):
+    """The smooth step b(s) of the pressure-ionization rule (ionization._smooth_step, one point)."""
+    t = math.log(max(s, 1e-300) / S_ONSET) / _WIDTH
+    if t <= 0.0:
+        return 0.0
+    if t >= 1.0:
+        return 1.0
+    a = math.exp(-1.0 / t)
+    c = math.exp(-1.0 / (1.0 - t))
+    return a / (a + c)
+
+
+@njit(cache=True, error_model="numpy")
+def _lnq(j, Zi, g, C, eta, kT, gb, gone, sp, dsp):
+    """ln q_j of stage j and its eta-partial (ionization_stages, one point)."""
+    if j == Zi:                       # the bare nucleus is never destroyed
+        lnw = 0.0
+        dw = 0.0
+    elif gone:
+        lnw = -1.0e300
+        dw = 0.0
+    else:
+        depth = (C[Zi] - C[j]) / kT + (Zi - j) * (sp + MARGIN)
+        lnw = -gb * depth
+        dw = -gb * (Zi - j) * dsp
+    return math.log(g[j]) + lnw - j * eta - C[j] / kT, dw - j
+
+
+@njit(cache=True, error_model="numpy")
+def _zbar(Zi, g, C, eta, kT, gb, gone, sp, dsp):
+    """Mean charge of an element with Zi <= 2 and its eta-partial at fixed T and rho (no allocation)."""
+    l0, d0 = _lnq(0, Zi, g, C, eta, kT, gb, gone, sp, dsp)
+    l1, d1 = _lnq(1, Zi, g, C, eta, kT, gb, gone, sp, dsp)
+    l2, d2 = (_lnq(2, Zi, g, C, eta, kT, gb, gone, sp, dsp) if Zi == 2 else (-math.inf, 0.0))
+    top = max(l0, max(l1, l2))
+    q0 = math.exp(l0 - top)
+    q1 = math.exp(l1 - top)
+    q2 = math.exp(l2 - top)
+    tot = q0 + q1 + q2
+    f0, f1, f2 = q0 / tot, q1 / tot, q2 / tot
+    mean = f0 * d0 + f1 * d1 + f2 * d2
+    return f1 + 2.0 * f2, f1 * (d1 - mean) + 2.0 * f2 * (d2 - mean)
+
+
+@njit(cache=True, error_model="numpy")
+def _one(lnn_full, rho, T, fixed, el_Z, el_N, el_g, el_C, tab, pairs, buf):
+    """Root y = ln n_e at one point; returns (y, ok)."""
+    kT = _K * T
+    s_rho = _PACK * math.exp(lnn_full)
+    s = s_rho + (T / THERMAL_DESTRUCTION_T) ** 4
+    b = _step_b(s)
+    gone = b >= 1.0 - 1e-12
+    gb = 0.0 if gone else b / (1.0 - b)
+    y = lnn_full
+    hi = lnn_full
+    lo = math.log(rho * fixed) if fixed > 0.0 else -math.inf
+    for _ in range(_MAX_ITER):
+        if not electron_point(math.exp(y), T, tab, buf):
+            return y, False
+        eta = buf[0]
+        sp = max(eta, 0.0) + math.log1p(math.exp(-abs(eta)))
+        dsp = 0.5 * (1.0 + math.tanh(0.5 * eta))
+        zsum = fixed
+        zeta = 0.0
+        for k in range(el_Z.size):
+            zb, dz = _zbar(el_Z[k], el_g[k], el_C[k], eta, kT, gb, gone, sp, dsp)
+            zsum += el_N[k] * zb
+            zeta += el_N[k] * dz
+        n_free = rho * zsum
+        phi = y - math.log(n_free)
+        if abs(phi) < _TOL:
+            break
+        slope = 1.0 - zeta / zsum * buf[1]
+        if phi > 0.0:
+            hi = y
+        else:
+            lo = y
+        step = min(max(phi / slope, -40.0), 40.0)
+        new = y - step
+        if new <= lo or new >= hi:
+            new = 0.5 * (lo + hi) if math.isfinite(lo) else hi - 40.0
+        if abs(new - y) < 1e-14 * max(1.0, abs(y)):
+            y = new
+            break
+        y = new
+    else:
+        return y, False
+    if y < tab[7]:
+        # below the table's lower edge the compiled reader scales the edge as a Boltzmann gas, the numpy
+        # state uses the exact quadrature (they differ by ~1e-9 in eta): the numpy path solves these points
+        return y, False
+    if not pairs:
+        return y, True
+    # positrons at the root, bounded above as matter._positron_bound does
+    theta = _THETA * T
+    eta_plus = min(-buf[0] - 2.0 / theta, 0.0)
+    G = 0.8862269 * (1.0 + 0.375 * theta) + theta * 1.3293404 * (1.0 + 0.625 * theta)
+    if _CN * theta**1.5 * math.exp(eta_plus) * G > 1e-10 * math.exp(y):
+        return y, False
+    return y, True
+
+
+@njit(cache=True, parallel=True, error_model="numpy")
+def _many(lnn_full, rho, T, fixed, el_Z, el_N, el_g, el_C, tab, pairs, y, ok):
+    buf = np.empty((rho.size, 12))
+    for i in prange(rho.size):
+        y[i], ok[i] = _one(lnn_full[i], rho[i], T[i], fixed, el_Z, el_N, el_g, el_C, tab, pairs, buf[i])
+
+
+_TAB = None
+
+
+@serialized
+def solve_saha_compiled(n_full, rho, T, saha: dict, fixed: float, elements: dict, pairs: bool = True):
+    """n_e and a mask of the points solved, for 1-d arrays n_full, rho, T (cm^-3, g cm^-3, K).
+
+    ``saha`` maps Z to nuclei per gram of the Saha elements, ``fixed`` is the electrons per gram of the
+    fully ionized rest, ``elements`` maps Z to :class:`~thermoplane.physics.ionization.Element`.
+    With ``pairs``, points whose positrons are not negligible at the root are handed back.
+    Points with ok False must be solved by the numpy path.
+    """
+    global _TAB
+    if _TAB is None:
+        _TAB = electron_arrays()
+    zs = sorted(saha)
+    el_Z = np.array(zs, dtype=np.int64)
+    el_N = np.array([saha[z] for z in zs], dtype=float)
+    el_g = np.ones((len(zs), 3))
+    el_C = np.zeros((len(zs), 3))
+    for k, z in enumerate(zs):
+        el_g[k, :z + 1] = elements[z].weights
+        el_C[k, :z + 1] = elements[z].cumulative_erg
+    y = np.empty(rho.size)
+    ok = np.zeros(rho.size, dtype=np.bool_)
+    _many(np.log(n_full), np.ascontiguousarray(rho), np.ascontiguousarray(T), float(fixed), el_Z, el_N, el_g,
+          el_C, _TAB, bool(pairs), y, ok)
+    return np.exp(y), ok

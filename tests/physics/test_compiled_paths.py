@@ -1,0 +1,57 @@
+"""The compiled parallel steps of the default equation of state agree with their numpy counterparts
+(physics.electron_fast against electron_table.table_state; physics.saha_kernel against matter._solve_saha)."""
+
+import numpy as np
+import pytest
+
+from thermoplane import physics as ph
+from thermoplane.physics import constants as const
+from thermoplane.physics import matter as M
+from thermoplane.physics.electron_fast import pair_free_state
+from thermoplane.physics.electron_table import table_state
+
+LR, LT = np.meshgrid(np.linspace(-12, 12, 97), np.linspace(3, 11.5, 61))
+RHO, T = (10.0**LR).ravel(), (10.0**LT).ravel()
+
+
+def test_pair_free_state_matches_the_numpy_table_on_the_plane():
+    n = RHO * 0.5 / const.m_u
+    new, old = pair_free_state(n, T), table_state(n, T, pairs=False)
+    for name in ("eta", "dP_dn", "dP_dT_n", "dE_dn", "dE_dT_n", "deta_dn", "deta_dT"):
+        np.testing.assert_allclose(getattr(new, name), getattr(old, name), rtol=1e-9, atol=0, err_msg=name)
+    for name in ("P", "E", "n_minus", "n_plus"):
+        np.testing.assert_allclose(getattr(new.gas, name), getattr(old.gas, name), rtol=1e-9, atol=0, err_msg=name)
+    # S cancels between its parts in extreme degeneracy (|S| far below n k): compare on the scale n k
+    np.testing.assert_allclose(new.gas.S, old.gas.S, rtol=0, atol=1e-9 * float(np.max(n * const.k_B)))
+    np.testing.assert_allclose(new.gas.S / (n * const.k_B), old.gas.S / (n * const.k_B), atol=1e-8)
+
+
+def test_pair_free_state_hands_points_outside_the_table_to_the_numpy_path():
+    n = np.array([1.0, 1e3, 1e20, 1e20])          # below the table in n; and T below / above it
+    T = np.array([1e5, 1e6, 5e2, 1e12])
+    new, old = pair_free_state(n, T), table_state(n, T, pairs=False)
+    np.testing.assert_array_equal(new.eta, old.eta)
+    np.testing.assert_array_equal(new.gas.P, old.gas.P)
+
+
+@pytest.mark.parametrize("X, Y", [(0.70, 0.28), (1.0, 0.0), (0.0, 0.98)])
+def test_compiled_saha_root_matches_the_numpy_root(X, Y):
+    comp = ph.Composition.from_xyz(X, Y, 1.0 - X - Y)
+    saha, fixed = M._saha_elements(comp, "saha")
+    n_full = RHO * float(np.sum(comp.X * comp.Z / (comp.A * const.m_u)))
+    n_c, ok = M.solve_saha_compiled(n_full, RHO, T, saha, fixed, M.ELEMENTS, True)
+    n_p = M._solve_saha(n_full, RHO, T, saha, fixed, "fermi", True)
+    # handed back to the numpy path: the roots below the table (1e4 cm^-3) and the points whose positrons
+    # are not negligible at the root
+    back = ~ok & (n_p >= 1e4)
+    eta_back = M._eta_at(n_p[back], T[back], "fermi", False)[0]
+    assert np.all(M._positron_bound(eta_back, T[back]) > 0.5 * M.NEGLIGIBLE_POSITRONS * n_p[back])
+    assert ok.mean() > 0.5
+    assert np.all(n_c[ok] >= 1e4)
+    # both stop at |y - ln n_free| < 1e-13
+    np.testing.assert_allclose(np.log(n_c[ok]), np.log(n_p[ok]), atol=1e-11, rtol=0)
+    # charge neutrality at the compiled root, checked with the numpy stage fractions
+    eta = M._eta_at(n_c[ok], T[ok], "fermi", False)[0]
+    st = M._stages(saha, eta, T[ok], n_full[ok])
+    n_free = M._free_electrons(st, saha, fixed, RHO[ok])[0]
+    np.testing.assert_allclose(np.log(n_c[ok]), np.log(n_free), atol=1e-11, rtol=0)
