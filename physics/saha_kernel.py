@@ -34,6 +34,7 @@ __all__ = ["solve_saha_compiled"]
 
 _K = const.k_B
 _THETA = const.k_B / const.m_e_c2
+_LN_NQ0 = math.log(2.0) + 1.5 * math.log(2.0 * math.pi * const.m_e * const.k_B / const.h**2)
 _PACK = (4.0 * math.pi / 3.0) * BOHR_RADIUS**3
 _WIDTH = math.log(S_COMPLETE / S_ONSET)
 _TOL = 1e-13
@@ -86,6 +87,34 @@ def _zbar(Zi, g, C, eta, kT, gb, gone, sp, dsp):
 
 
 @njit(cache=True, error_model="numpy")
+def _start(lnn_full, lo, rho, T, fixed, el_Z, el_N, el_g, el_C, kT, gb, gone):
+    """A starting ln n_e: the same equation with non-degenerate, non-relativistic electrons,
+    eta = ln(n_e / n_Q(T)), solved by cheap Newton steps (no table reads). Where that start would be
+    degenerate (eta > -1) the classical eta is no guide: start from full ionization, as the numpy path does."""
+    lnQ = _LN_NQ0 + 1.5 * math.log(T)
+    y = lnn_full
+    for _ in range(60):
+        eta = y - lnQ
+        if eta > -1.0:
+            return lnn_full
+        sp = math.log1p(math.exp(eta))
+        dsp = 0.5 * (1.0 + math.tanh(0.5 * eta))
+        zsum = fixed
+        zeta = 0.0
+        for k in range(el_Z.size):
+            zb, dz = _zbar(el_Z[k], el_g[k], el_C[k], eta, kT, gb, gone, sp, dsp)
+            zsum += el_N[k] * zb
+            zeta += el_N[k] * dz
+        phi = y - math.log(rho * zsum)
+        new = y - min(max(phi / (1.0 - zeta / zsum), -40.0), 40.0)
+        new = min(max(new, lo), lnn_full)
+        if abs(new - y) < 1e-6:
+            return new
+        y = new
+    return lnn_full
+
+
+@njit(cache=True, error_model="numpy")
 def _one(lnn_full, rho, T, fixed, el_Z, el_N, el_g, el_C, tab, pairs, buf):
     """Root y = ln n_e at one point; returns (y, ok)."""
     kT = _K * T
@@ -94,9 +123,9 @@ def _one(lnn_full, rho, T, fixed, el_Z, el_N, el_g, el_C, tab, pairs, buf):
     b = _step_b(s)
     gone = b >= 1.0 - 1e-12
     gb = 0.0 if gone else b / (1.0 - b)
-    y = lnn_full
     hi = lnn_full
     lo = math.log(rho * fixed) if fixed > 0.0 else -math.inf
+    y = _start(lnn_full, lo, rho, T, fixed, el_Z, el_N, el_g, el_C, kT, gb, gone)
     for _ in range(_MAX_ITER):
         if not electron_point(math.exp(y), T, tab, buf):
             return y, False
