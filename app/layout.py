@@ -272,7 +272,8 @@ def about_physics() -> list:
           "ionization stage of every element, the Coulomb term of each ion, an excluded volume whose derivative "
           "is the occupation probability), with every quantity from one minimum. It is available from Python "
           "and the command line as ionization=\"chemical\" (experimental: stiff in the pressure-ionization "
-          "band, about a thousand times slower per point than this map allows, not yet with the dense-plasma "
+          "band, where it returns two coexisting phases across the van der Waals loops of its isotherms; "
+          "about a thousand times slower per point than this map allows, not yet with the dense-plasma "
           "terms); see the README."),
         P("Results are for exploration and checks. For a publication, compare against a full tabulated "
           "equation of state.", className="strong"),

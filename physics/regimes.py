@@ -440,6 +440,7 @@ FLAG_LABELS: dict[str, str] = {
     "strongly_coupled": "strongly coupled ions (Γ > 1)",
     "crystallized": "crystallized ions (the crystal's free energy is lower)",
     "quantum_ions": "quantum ions (T < T_p)",
+    "two_phase": "two phases coexist (the chemical picture's plasma phase transition: P flat on the isotherm)",
 }
 
 
@@ -477,7 +478,7 @@ def flags(state, comp=None) -> dict[str, np.ndarray]:
     Returns
     -------
     dict of str -> bool ndarray
-        "partially_ionized", "strongly_coupled", "crystallized", "quantum_ions".
+        "partially_ionized", "strongly_coupled", "crystallized", "quantum_ions", "two_phase".
 
     Notes
     -----
@@ -489,6 +490,8 @@ def flags(state, comp=None) -> dict[str, np.ndarray]:
     - crystallized: the ion crystal has the lower free energy (state.crystallized, from
       physics.eos.dense_plasma; in the classical limit at Gamma = 175, Potekhin & Chabrier 2000).
     - quantum_ions: T < T_p, the ion plasma temperature hbar omega_p / k.
+    - two_phase: inside a coexistence region of the chemical picture (state.coexistence, from
+      physics.eos.coexistence; never under the default options).
     """
     lo, hi = PARTIAL_IONIZATION
     ion_H = np.asarray(state.ion_H, dtype=float)
@@ -500,4 +503,5 @@ def flags(state, comp=None) -> dict[str, np.ndarray]:
     return {"partially_ionized": np.asarray(partial),
             "strongly_coupled": Gamma > COUPLING_GAMMA,
             "crystallized": np.asarray(state.crystallized, dtype=float) > 0.5,
-            "quantum_ions": np.asarray(state.T, dtype=float) < np.asarray(state.T_p, dtype=float)}
+            "quantum_ions": np.asarray(state.T, dtype=float) < np.asarray(state.T_p, dtype=float),
+            "two_phase": np.asarray(getattr(state, "coexistence", np.zeros_like(Gamma)), dtype=float) > 0.5}

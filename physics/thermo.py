@@ -48,7 +48,7 @@ def response(total: Part, rho: np.ndarray, T: np.ndarray) -> dict[str, np.ndarra
         \\chi_\\rho = (\\partial\\ln P/\\partial\\ln\\rho)_T,\\;
         \\chi_T = (\\partial\\ln P/\\partial\\ln T)_\\rho,\\;
         c_P = c_V + P\\chi_T^2/(\\rho T\\chi_\\rho),\\;
-        \\Gamma_1 = \\chi_\\rho c_P/c_V,\\;
+        \\Gamma_1 = \\chi_\\rho c_P/c_V = \\chi_\\rho + P\\chi_T^2/(\\rho T c_V),\\;
         \\Gamma_3 - 1 = P\\chi_T/(\\rho T c_V),\\;
         \\nabla_{ad} = P\\chi_T/(\\rho T c_P \\chi_\\rho)
     """
@@ -56,10 +56,14 @@ def response(total: Part, rho: np.ndarray, T: np.ndarray) -> dict[str, np.ndarra
     chi_rho = rho * total.P_rho / P
     chi_T = T * total.P_T / P
     c_V = total.E_T
-    c_P = c_V + P * chi_T**2 / (rho * T * chi_rho)
-    gamma1 = chi_rho * c_P / c_V
+    # the same formulas arranged so that chi_rho = 0 (two coexisting phases) leaves Gamma_1 and nabla_ad
+    # finite; c_P is infinite there (heat at constant P turns one phase into the other)
+    x = P * chi_T**2 / (rho * T)
+    with np.errstate(divide="ignore"):
+        c_P = c_V + x / chi_rho
+    gamma1 = chi_rho + x / c_V
     gamma3 = 1.0 + P * chi_T / (rho * T * c_V)
-    nabla_ad = P * chi_T / (rho * T * c_P * chi_rho)
+    nabla_ad = P * chi_T / (rho * T * c_V * chi_rho + P * chi_T**2)
     sound_speed = np.sqrt(np.maximum(gamma1 * P / rho, 0.0))
     return dict(chi_rho=chi_rho, chi_T=chi_T, c_V=c_V, c_P=c_P, gamma1=gamma1,
                 gamma3=gamma3, nabla_ad=nabla_ad, sound_speed=sound_speed)

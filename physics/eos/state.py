@@ -48,7 +48,7 @@ FIELD_UNITS = {
     "dP_drho": "dyn cm^-2 / (g cm^-3)", "dP_dT": "dyn cm^-2 K^-1",
     "dE_drho": "erg g^-1 / (g cm^-3)", "dS_dT": "erg g^-1 K^-2",
     "ion_H": "", "ion_He1": "", "ion_He2": "", "mean_Z": "",
-    "n_minus": "cm^-3", "n_plus": "cm^-3", "h2_fraction": "",
+    "n_minus": "cm^-3", "n_plus": "cm^-3", "h2_fraction": "", "coexistence": "",
     "crystallized": "", "T_p": "K", "melt_margin": "", "c_V_ion": "erg g^-1 K^-1", "c_V_e": "erg g^-1 K^-1",
     "c_V_rad": "erg g^-1 K^-1",
 }
@@ -72,6 +72,8 @@ FIELD_DESCRIPTIONS = {
     "ion_He2": "fraction of helium doubly ionized", "mean_Z": "mean free electrons per nucleus",
     "n_minus": "electron number density", "n_plus": "positron number density",
     "h2_fraction": "fraction of hydrogen nuclei bound in H2 (chemical picture only; 0 otherwise)",
+    "coexistence": "1 where two phases coexist (the chemical picture's plasma phase transition: common tangent "
+                   "of F in V, P constant along the isotherm); 0 elsewhere",
     "crystallized": "1 where the ion crystal has the lower free energy, else 0",
     "T_p": "ion plasma temperature hbar omega_p / k (ions are quantum below it)",
     "melt_margin": "free energy of the ion crystal minus the liquid, per ion over kT (< 0: crystal; "
@@ -122,6 +124,7 @@ class ThermoState:
     n_minus: np.ndarray
     n_plus: np.ndarray
     h2_fraction: np.ndarray
+    coexistence: np.ndarray
     crystallized: np.ndarray
     T_p: np.ndarray
     melt_margin: np.ndarray
@@ -234,7 +237,7 @@ def evaluate(rho, T, comp: Composition, **options) -> ThermoState:
         ye=gas.n_net * const.m_u / rho, Gamma=Gamma, dP_drho=total.P_rho, dP_dT=total.P_T,
         dE_drho=total.E_rho, dS_dT=total.S_T, ion_H=gas.ion_H, ion_He1=gas.ion_He1, ion_He2=gas.ion_He2,
         mean_Z=gas.mean_Z, n_minus=gas.n_minus, n_plus=gas.n_plus, crystallized=crystallized, T_p=T_p,
-        melt_margin=melt_margin, h2_fraction=np.zeros_like(rho),
+        melt_margin=melt_margin, h2_fraction=np.zeros_like(rho), coexistence=np.zeros_like(rho),
         c_V_ion=c_V_ion, c_V_e=resp["c_V"] - c_V_ion - rad.E_T, c_V_rad=rad.E_T, **resp)
 
 
@@ -250,10 +253,12 @@ def _chemical_state(rho, T, comp: Composition, opts: dict, rad: Part) -> ThermoS
 
     Experimental (see the README): points where the equilibrium is not found are NaN in every field.
     """
+    from .coexistence import apply_coexistence
     from .equilibrium import solve_equilibrium
     shape = rho.shape
     r = solve_equilibrium(rho.ravel(), T.ravel(), comp, electrons=opts["electrons"], pairs=opts["pairs"],
                           coulomb=opts["coulomb"])
+    r, two_phase = apply_coexistence(rho.ravel(), T.ravel(), comp, r, opts)
     rs = lambda a: np.reshape(a, shape)  # noqa: E731
     bad = rs(r.status < 0)
     rf, tf = rho, T
@@ -270,6 +275,7 @@ def _chemical_state(rho, T, comp: Composition, opts: dict, rad: Part) -> ThermoS
         ye=rs(r.n_e) * const.m_u / rho, Gamma=Gamma, dP_drho=total.P_rho, dP_dT=total.P_T,
         dE_drho=total.E_rho, dS_dT=total.S_T, ion_H=rs(r.ion_H), ion_He1=rs(r.ion_He1), ion_He2=rs(r.ion_He2),
         mean_Z=rs(r.n_e) / n_nuc, n_minus=rs(r.n_minus), n_plus=rs(r.n_plus), h2_fraction=rs(r.h2_fraction),
+        coexistence=rs(two_phase),
         # the chemical picture's ions are the liquid one-component plasma so far: no crystal, no c_V split
         crystallized=np.zeros_like(rho), T_p=_plasma_temperature(rho, T, comp), melt_margin=np.full_like(rho, np.nan),
         c_V_ion=np.full_like(rho, np.nan), c_V_e=np.full_like(rho, np.nan), c_V_rad=rad.E_T, **resp)

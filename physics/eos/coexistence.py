@@ -1,0 +1,226 @@
+"""Two-phase coexistence of the chemical picture: where F is not convex in V, the common tangent.
+
+The question this module answers: where an isotherm of the chemical-picture free energy has a van der Waals
+loop (the pressure falls as the density rises: the plasma phase transition of hydrogen that the
+excluded-volume term produces), which two phases coexist, and what are P, E, S and their derivatives of the
+two-phase mixture?
+
+Coexistence at temperature T (Maxwell's construction; e.g. Landau & Lifshitz, Statistical Physics, sect. 84):
+the densities rho_a < rho_b with equal pressure and equal Gibbs energy per gram, g = f + P/rho
+(f = E - T S), so the two-phase free energy per gram is the common tangent of f(v) in v = 1/rho,
+
+    f(v, T) = g*(T) - P*(T) v,     rho_a < rho < rho_b,
+
+and the unstable and metastable branches in between are never returned. Everything follows from it:
+
+    P = P*(T),  (dP/drho)_T = 0,  (dP/dT)_rho = P*' = (s_b - s_a) / (v_b - v_a)   (Clausius-Clapeyron),
+    s = s_a + (v - v_a) P*',  E = f + T s,
+    (ds/dT)_v = s_a' + (v - v_a) P*'' - v_a' P*',
+
+with ' the derivative along the coexistence curve: v_a' = (P*' - P_T^a) / P_v^a (each phase stays on the
+curve), s_a' = S_T^a + P_T^a v_a' (Maxwell: (ds/dv)_T = (dP/dT)_v), and P*'' from differentiating the
+Clapeyron quotient. The identities hold in the two-phase region as exactly as in each phase. Radiation adds
+a free energy linear in v, so it moves no tangent and is added afterwards.
+
+How the curve is found, per temperature: the isotherm is scanned in log rho (LOG_RHO_SCAN) in one call of
+the equilibrium solver; on its solved points each local maximum of P followed by a local minimum is a loop;
+g on the stable branch below (a) and above (b), as functions of ln P, is compared on their common pressure
+range, and the first sign change of g_a - g_b gives the start; Newton iterations on
+(ln P_a - ln P_b, (g_a - g_b) rho_a / P_a) in (ln rho_a, ln rho_b) converge it to rounding. Loops whose
+branches share no pressure range (below ~1.5e4 K for hydrogen, where the solver finds no root on part of
+the neutral branch) are not constructed: those points keep the one-phase result (NaN where it has no root).
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+from ..composition import Composition
+
+__all__ = ["LOG_RHO_SCAN", "T_MAX", "binodal", "apply_coexistence"]
+
+#: the densities scanned for loops, log10 g cm^-3 (the pressure-ionization band of H, He and the C/O K shells)
+LOG_RHO_SCAN = np.arange(-2.0, 5.0 + 1e-9, 0.01)
+#: no isotherm above this temperature is scanned (K): the loops close well below it (measured: H ~8e4 K)
+T_MAX = 1.0e6
+_MAX_LOOPS = 3
+_NEWTON = 30
+
+
+def _solve(rho, T, comp, opts):
+    from .equilibrium import solve_equilibrium
+    return solve_equilibrium(rho, T, comp, electrons=opts["electrons"], pairs=opts["pairs"],
+                             coulomb=opts["coulomb"])
+
+
+def _gibbs(r, rho, T):
+    return r.E - T * r.S + r.P / rho
+
+
+def _loops_on_isotherm(lr, P, g):
+    """Starting (log rho_a, log rho_b) of each loop on one scanned isotherm (finite points only)."""
+    ok = np.isfinite(P) & np.isfinite(g) & (P > 0)
+    x, p, gg = lr[ok], P[ok], g[ok]
+    if x.size < 5:
+        return []
+    d = np.sign(np.diff(p))
+    turns = np.flatnonzero(d[1:] != d[:-1]) + 1           # indices of local extrema
+    out = []
+    k = 0
+    while k < turns.size - 1 and len(out) < _MAX_LOOPS:
+        i1, i2 = turns[k], turns[k + 1]
+        if not (d[i1 - 1] > 0 > d[i1] and d[i2 - 1] < 0 < d[i2]):     # a maximum followed by a minimum
+            k += 1
+            continue
+        lo_a = turns[k - 1] if k > 0 else 0                           # the rising branch below the maximum
+        hi_b = turns[k + 2] if k + 2 < turns.size else x.size - 1      # the rising branch above the minimum
+        a, b = slice(lo_a, i1 + 1), slice(i2, hi_b + 1)
+        lo, hi = max(p[a].min(), p[b].min()), min(p[a].max(), p[b].max())
+        k += 2
+        if not lo < hi:
+            continue
+        lnP = np.linspace(np.log(lo), np.log(hi), 200)
+        ga = np.interp(lnP, np.log(p[a]), gg[a])
+        gb = np.interp(lnP, np.log(p[b]), gg[b])
+        s = np.flatnonzero(np.sign(ga[1:] - gb[1:]) != np.sign(ga[:-1] - gb[:-1]))
+        if s.size == 0:
+            continue
+        Ps = lnP[s[0]]
+        out.append((float(np.interp(Ps, np.log(p[a]), x[a])), float(np.interp(Ps, np.log(p[b]), x[b]))))
+    return out
+
+
+def binodal(T, comp: Composition, **options):
+    """The coexisting densities at each temperature of ``T`` (1-d array, K).
+
+    Returns (rho_a, rho_b, P) arrays of shape (T.size, 3): up to three loops per isotherm, NaN-padded,
+    ordered by density. ``options`` are those of :func:`thermoplane.physics.evaluate` (electrons, pairs,
+    coulomb); the chemical picture is implied.
+    """
+    from .state import validate_options
+    opts = validate_options(ionization="chemical", **options)
+    T = np.asarray(T, dtype=float).ravel()
+    nT = T.size
+    ra = np.full((nT, _MAX_LOOPS), np.nan)
+    rb = np.full((nT, _MAX_LOOPS), np.nan)
+    Pc = np.full((nT, _MAX_LOOPS), np.nan)
+    scan = np.flatnonzero(T < T_MAX)
+    if scan.size == 0:
+        return ra, rb, Pc
+    lr = LOG_RHO_SCAN
+    RR = np.broadcast_to(10.0**lr, (scan.size, lr.size)).ravel()
+    TT = np.repeat(T[scan], lr.size)
+    r = _solve(RR, TT, comp, opts)
+    P = r.P.reshape(scan.size, lr.size)
+    g = _gibbs(r, RR, TT).reshape(scan.size, lr.size)
+    rows, cols, xa, xb = [], [], [], []
+    for k, i in enumerate(scan):                     # per isotherm (a few hundred numbers each), not per point
+        for j, (a, b) in enumerate(_loops_on_isotherm(lr, P[k], g[k])):
+            rows.append(i)
+            cols.append(j)
+            xa.append(a)
+            xb.append(b)
+    if not rows:
+        return ra, rb, Pc
+    rows, cols = np.array(rows), np.array(cols)
+    y = np.log(10.0) * np.column_stack([xa, xb])         # ln rho_a, ln rho_b
+    Tl = T[rows]
+    done = np.zeros(rows.size, dtype=bool)
+    for _ in range(_NEWTON):
+        n = rows.size
+        rr = np.exp(np.concatenate([y[:, 0], y[:, 1]]))
+        s = _solve(rr, np.concatenate([Tl, Tl]), comp, opts)
+        Pa, Pb = s.P[:n], s.P[n:]
+        ga, gb = _gibbs(s, rr, np.concatenate([Tl, Tl]))[:n], _gibbs(s, rr, np.concatenate([Tl, Tl]))[n:]
+        dPa, dPb = s.P_lnrho[:n], s.P_lnrho[n:]                 # dP / d ln rho at fixed T
+        scale = Pa / rr[:n]
+        R1 = np.log(Pa) - np.log(Pb)
+        R2 = (ga - gb) / scale
+        # dg / d ln rho = (1/rho) dP / d ln rho at fixed T (Gibbs-Duhem)
+        J11, J12 = dPa / Pa, -dPb / Pb
+        J21, J22 = dPa / rr[:n] / scale, -dPb / rr[n:] / scale
+        det = J11 * J22 - J12 * J21
+        d0 = (R1 * J22 - R2 * J12) / det
+        d1 = (J11 * R2 - J21 * R1) / det
+        step = np.clip(np.column_stack([d0, d1]), -0.05, 0.05)
+        y = y - np.where(done[:, None], 0.0, step)
+        done = done | ((np.abs(R1) < 1e-13) & (np.abs(R2) < 1e-12)) | (np.maximum(np.abs(d0), np.abs(d1)) < 1e-11)
+        if done.all():
+            break
+    good = done & (y[:, 0] < y[:, 1] - 1e-6)
+    ra[rows[good], cols[good]] = np.exp(y[good, 0])
+    rb[rows[good], cols[good]] = np.exp(y[good, 1])
+    Pc[rows[good], cols[good]] = Pa[good]
+    return ra, rb, Pc
+
+
+def apply_coexistence(rho, T, comp: Composition, r, opts: dict):
+    """Replace, inside every coexistence interval, the one-phase equilibrium ``r`` (1-d, per gram, the
+    :class:`~thermoplane.physics.eos.equilibrium.Equilibrium` of ``rho``, ``T``) by the two-phase mixture.
+
+    Returns (r, flag): the updated equilibrium (status 4 inside) and a 0/1 array, 1 in coexistence.
+    """
+    flag = np.zeros(rho.size)
+    cand = np.flatnonzero(T < T_MAX)
+    if cand.size == 0:
+        return r, flag
+    Tu, inv = np.unique(T[cand], return_inverse=True)
+    ra, rb, _ = binodal(Tu, comp, electrons=opts["electrons"], pairs=opts["pairs"], coulomb=opts["coulomb"])
+    a_pt, b_pt = ra[inv], rb[inv]                                   # (cand, loops)
+    with np.errstate(invalid="ignore"):
+        inside = (rho[cand, None] > a_pt) & (rho[cand, None] < b_pt)
+    hit = inside.any(axis=1)
+    if not hit.any():
+        return r, flag
+    idx = cand[hit]
+    loop = np.argmax(inside[hit], axis=1)
+    rho_a = a_pt[hit, loop]
+    rho_b = b_pt[hit, loop]
+    Tm = T[idx]
+    n = idx.size
+    s = _solve(np.concatenate([rho_a, rho_b]), np.concatenate([Tm, Tm]), comp, opts)
+    A = {k: getattr(s, k)[:n] for k in s._fields}
+    B = {k: getattr(s, k)[n:] for k in s._fields}
+    v, va, vb = 1.0 / rho[idx], 1.0 / rho_a, 1.0 / rho_b
+    # per-gram one-phase derivatives: P_T, S_T at fixed rho; P_v = dP/dv at fixed T
+    PTa, PTb = A["P_lnT"] / Tm, B["P_lnT"] / Tm
+    STa, STb = A["S_lnT"] / Tm, B["S_lnT"] / Tm
+    Pva, Pvb = -rho_a * A["P_lnrho"], -rho_b * B["P_lnrho"]        # dP/dv = -rho dP/d ln rho
+    Pstar = 0.5 * (A["P"] + B["P"])
+    dP = (B["S"] - A["S"]) / (vb - va)                               # Clausius-Clapeyron
+    dva = (dP - PTa) / Pva
+    dvb = (dP - PTb) / Pvb
+    dsa = STa + PTa * dva
+    dsb = STb + PTb * dvb
+    d2P = ((dsb - dsa) * (vb - va) - (B["S"] - A["S"]) * (dvb - dva)) / (vb - va) ** 2
+    fa = A["E"] - Tm * A["S"]
+    gstar = fa + Pstar * va
+    f = gstar - Pstar * v
+    S = A["S"] + (v - va) * dP
+    S_T = dsa + (v - va) * d2P - dva * dP
+    E = f + Tm * S
+    rr = rho[idx]
+    x = (va - v) / (va - vb)                                         # mass fraction in the dense phase b
+    new = {k: np.array(getattr(r, k), dtype=float, copy=True) for k in r._fields}
+    new["P"][idx] = Pstar
+    new["P_lnrho"][idx] = 0.0
+    new["P_lnT"][idx] = Tm * dP
+    new["S"][idx] = S
+    new["S_lnT"][idx] = Tm * S_T
+    new["S_lnrho"][idx] = -dP / rr                                   # ds/d ln rho = -v dP*/dT
+    new["E"][idx] = E
+    new["E_lnT"][idx] = Tm * Tm * S_T                                # (dE/dT)_v = T (dS/dT)_v
+    new["E_lnrho"][idx] = (Pstar - Tm * dP) / rr                     # (dE/d ln rho)_T = (P - T dP/dT) / rho
+    new["residual"][idx] = np.maximum(A["residual"], B["residual"])
+    for k in ("eta", "ion_H", "ion_He1", "ion_He2", "h2_fraction", "zeta"):
+        new[k][idx] = (1.0 - x) * A[k] + x * B[k]
+    for k in ("n_minus", "n_plus", "n_e"):                           # per volume: lever rule on volumes
+        new[k][idx] = rr * ((1.0 - x) * A[k] / rho_a + x * B[k] / rho_b)
+    for k in ("metal_electrons", "heavy"):                           # per gram
+        new[k][idx] = (1.0 - x) * A[k] + x * B[k]
+    for k in ("P_ion", "P_e", "P_coul"):                             # the parts of P* in the two phases' mix
+        new[k][idx] = (1.0 - x) * A[k] + x * B[k]
+    new["status"] = np.array(r.status, copy=True)
+    new["status"][idx] = 4
+    flag[idx] = 1.0
+    return type(r)(**new), flag
