@@ -38,9 +38,11 @@ tests/physics/test_neutrinos.py:
   (measured, not asserted). The two temperature bands of the pair fit, fitted
   separately, join at 10¹⁰ K to 6 % at rho/mu_e <= 10⁶ but not above (a factor
   1.4 at 10⁹, 2.1 at 10¹⁰): there the lower band agrees with the integral and
-  the upper one does not, which a misremembered upper-band coefficient
-  (b_1, b_2, b_3 or c for T >= 10¹⁰ K) could cause as well as the fit itself;
-  the paper text would decide it;
+  the upper one does not. Above 10^10.3 K the upper band is the right one (the
+  lower band, extended, drifts to 1.37 at 10¹¹ K while the upper stays within
+  0.91–1.05 at rho/mu_e <= 10⁸), so the recalled upper-band coefficients
+  (b_1, b_2, b_3, c for T >= 10¹⁰ K) behave like a fit of ~10 % accuracy; a
+  misremembered one near the band edge cannot be ruled out without the paper;
 - pair of non-relativistic, non-degenerate pairs to 2 %;
 - plasma: against the rate integrated there over the plasmon spectrum with the
   dispersion relations of Braaten & Segel (1993, Phys. Rev. D 48, 1478; their
