@@ -15,33 +15,67 @@ Sources
 Pair, photo and plasma: the analytic fitting formulae of Itoh, Hayashi,
 Nishikawa & Kohyama (1996, ApJS 102, 411; "Itoh 96" below), sec. 2 (pair),
 sec. 3 (photo), sec. 4 (plasma), in the Weinberg–Salam theory with
-sin²θ_W = 0.2319 and n = 2 neutrino flavours besides ν_e. Only the opening of
-that paper was retrievable while this module was written: the formulae and
-coefficients below were written down from memory of it and checked against
-limits derived independently from first principles in
-tests/physics/test_neutrinos.py (the pair process of non-relativistic,
-non-degenerate pairs to 2 %, the plasma process of classical plasmons to 3 %,
-the plasma-frequency constants to 1 %; the 36 recalled photo coefficients of the
-two upper temperature bands, fitted separately by Itoh 96, join at 10⁹ K to
-3e-4, which a misremembered leading coefficient would break). Equation numbers could not be checked:
-the formulae are cited by section.
+sin²θ_W = 0.2319 and n = 2 neutrino flavours besides ν_e. The formulae and
+coefficients below were written down from memory of that paper.
 
-Bremsstrahlung: Itoh 96 (sec. 5) gives per-nucleus tables of coefficients for
-the liquid and crystal phases that could not be recalled reliably. This
-module uses instead the closed formula for degenerate, relativistic electrons
-scattered by nuclei of Haensel, Kaminker & Yakovlev (1996, A&A 314, 328) in
-the form of Kaminker et al. (1999, A&A 343, 1009):
+Checked against the paper text: none of them. The paper's manuscript TeX is
+stored in the search tool's "pages" corpus (the AAS CD-ROM copy, .../apjs/v102/
+p411/text/tex/manuscri.tex), but every query returns only its opening: title,
+authors and the first lines of the abstract, which confirm the title, the
+processes covered and that the results are given as fitting formulae and
+tables. No equation, coefficient or table of the paper could be read, so no
+coefficient was changed and equation numbers are still cited by section.
+
+Checked instead against values derived independently in
+tests/physics/test_neutrinos.py:
+
+- pair: against the emission rate integrated there from first principles
+  (Fermi–Dirac e⁻ and e⁺, the standard-model cross-section) at any degeneracy
+  and relativity: the fit is within 0.86–1.11 of it on a grid of 31 points
+  10^8.7–10^11 K, rho/mu_e <= 10⁸ g cm⁻³ where pairs give >= 50 % of the
+  losses; 12–14 % low near 10^10.2 K (the upper band of the fit). Denser it is
+  worse: 1.41 at 10¹⁰ K and rho/mu_e = 10^9.5, 0.5 at 10^10.9 K and 10¹²
+  (measured, not asserted). The two temperature bands of the pair fit, fitted
+  separately, join at 10¹⁰ K to 6 % at rho/mu_e <= 10⁶ but not above (a factor
+  1.4 at 10⁹, 2.1 at 10¹⁰): there the lower band agrees with the integral and
+  the upper one does not. Above 10^10.3 K the upper band is the right one (the
+  lower band, extended, drifts to 1.37 at 10¹¹ K while the upper stays within
+  0.91–1.05 at rho/mu_e <= 10⁸), so the recalled upper-band coefficients
+  (b_1, b_2, b_3, c for T >= 10¹⁰ K) behave like a fit of ~10 % accuracy; a
+  misremembered one near the band edge cannot be ruled out without the paper;
+- pair of non-relativistic, non-degenerate pairs to 2 %;
+- plasma: against the rate integrated there over the plasmon spectrum with the
+  dispersion relations of Braaten & Segel (1993, Phys. Rev. D 48, 1478; their
+  self-energies written from memory, checked there in the classical limit):
+  the fit (with its f_xy factor) is within 0.963–1.013 of it at 13 points
+  10⁷–10¹⁰ K, gamma = 0.3–10.5, where plasmons give >= 50 % of the losses
+  (without f_xy it would be 0.46–1.16); classical plasmons to 3 %, the
+  plasma-frequency constants to 1 %, the exponential death where
+  hbar omega_p >> kT;
+- photo: the 36 recalled coefficients of the two upper temperature bands, fitted
+  separately by Itoh 96, join at 10⁹ K to 3e-4 (a misremembered leading
+  coefficient would break that); the n_e T⁸ law of cool, dilute matter.
+
+Bremsstrahlung: Itoh 96 (sec. 5) gives fits for the liquid-metal and crystal
+phases with per-nucleus tables of coefficients; they could neither be recalled
+reliably nor read (see above), so they are not used. This module uses
+instead the closed formula for degenerate, relativistic electrons scattered by
+nuclei of Haensel, Kaminker & Yakovlev (1996, A&A 314, 328) in the form of
+Kaminker et al. (1999, A&A 343, 1009; formula and prefactor from memory):
 Q = 8 π G_F² Z² e⁴ C₊² (kT)⁶ n_i L / (567 ħ⁹ c⁸), with the Coulomb logarithm
 L = 1 (the published fits give L between about 0.3 and 1 in the liquid, from
-memory; Kaminker et al. 1999 state that the solid phase does not differ
-significantly from the liquid), i.e. an upper estimate. It is valid for degenerate, relativistic electrons; where the
+memory), i.e. an upper estimate. One phase serves for both: "generally,
+bremsstrahlung in the solid phase does not differ significantly from that in
+the liquid" (Kaminker et al. 1999, abstract, read in the pages corpus; their
+analysis covers 10⁹ <~ rho <~ 1.5e14 g cm⁻³, so below 10⁹ the formula is
+extrapolated). It is valid for degenerate, relativistic electrons; where the
 electrons are not relativistic (x_F < 1, rho/mu_e < 9.74e5 g cm⁻³) or not
 degenerate (kT above the Fermi kinetic energy of the T = 0 gas) it is set to
 zero here (our choice, no source; it leaves a step in the bremsstrahlung map at
 x_F = 1, and left of it, below about 10⁷ K, the plasma process is shown as
 dominant where the bremsstrahlung of non-relativistic electrons may be larger).
 
-Validity (Itoh 96, as recalled): pair 10⁸ K <= T <= 10¹¹ K; photo and plasma
+Validity (Itoh 96, as recalled; not checked against the paper text): pair 10⁸ K <= T <= 10¹¹ K; photo and plasma
 10⁷ K <= T <= 10¹¹ K; all for 1 <= rho/mu_e <= 10¹⁴ g cm⁻³ (photo to 10¹¹).
 Outside, the formulae are extrapolated (the photo coefficients below 10⁷ K
 are held at their 10⁷ K values); the results stay finite and >= 0 on the whole
@@ -89,8 +123,8 @@ _SUM_PLUS = (_CV**2 + _CA**2) + N_FLAVOURS * (_CVP**2 + _CAP**2)
 _SUM_MINUS = (_CV**2 - _CA**2) + N_FLAVOURS * (_CVP**2 - _CAP**2)
 _SUM_VECTOR = _CV**2 + N_FLAVOURS * _CVP**2
 
-# Photo-neutrino Fourier coefficients, Itoh 96 sec. 3 (their table of c_ik, d_ik), per
-# temperature range: (c row i=0..2 with k=0..6), (d row i=0..2 with k=1..5), c constant.
+# Photo-neutrino Fourier coefficients, Itoh 96 sec. 3 (their table of c_ik, d_ik; from memory, the
+# table could not be read), per temperature range: (c row i=0..2 with k=0..6), (d row i=0..2 with k=1..5), c constant.
 _PHOTO = {
     # 10^7 K <= T < 10^8 K, tau = log10(T / 10^7), exponent c = 0.5654 + tau
     0: (((1.008e11, 0.0, 0.0, 0.0, 0.0, 0.0, 0.0),
@@ -140,7 +174,11 @@ def _variables(rho, T, comp):
 
 
 def _log_pair(T, lam, nu, xi):
-    """ln Q_pair (erg cm^-3 s^-1), Itoh 96 sec. 2."""
+    """ln Q_pair (erg cm^-3 s^-1), Itoh 96 sec. 2.
+
+    Coefficients from memory, not checked against the paper text (only its opening is readable);
+    checked against a first-principles integral (module docstring).
+    """
     hi = T >= 1e10
     a0, a1, a2 = 6.002e19, 2.084e20, 1.872e21
     b1 = np.where(hi, 1.2383, 9.383e-1)
@@ -182,7 +220,7 @@ def _photo_coefficients(T):
 
 
 def _log_photo(T, lam, nu, xi):
-    """ln Q_photo (erg cm^-3 s^-1), Itoh 96 sec. 3."""
+    """ln Q_photo (erg cm^-3 s^-1), Itoh 96 sec. 3 (from memory, not checked against the paper text)."""
     # the coefficients depend on T alone: computed once per distinct temperature (a map has one per row)
     T_unique, inverse = np.unique(T, return_inverse=True)
     a_u, c_u, q_u, poly_u = _photo_coefficients(T_unique)
@@ -201,7 +239,7 @@ def _log_photo(T, lam, nu, xi):
 
 
 def _log_plasma(T, lam, nu):
-    """ln Q_plasma (erg cm^-3 s^-1), Itoh 96 sec. 4."""
+    """ln Q_plasma (erg cm^-3 s^-1), Itoh 96 sec. 4 (from memory, not checked against the paper text)."""
     # gamma^2 = 1.1095e11 nu / (T^2 [1 + (1.019e-6 nu)^(2/3)]^(1/2)) = (hbar omega_0 / kT)^2
     gamma = np.sqrt(1.1095e11 * nu / (T * T * np.sqrt(1.0 + np.cbrt(1.019e-6 * nu) ** 2)))
     sg = np.sqrt(gamma)
