@@ -22,8 +22,9 @@ curve), s_a' = S_T^a + P_T^a v_a' (Maxwell: (ds/dv)_T = (dP/dT)_v), and P*'' fro
 Clapeyron quotient. The identities hold in the two-phase region as exactly as in each phase. Radiation adds
 a free energy linear in v, so it moves no tangent and is added afterwards.
 
-How the curve is found, per temperature: the isotherm is scanned in log rho (LOG_RHO_SCAN) in one call of
-the equilibrium solver; on its solved points each local maximum of P followed by a local minimum is a loop;
+How the curve is found, per temperature: the isotherm is scanned coarsely in log rho (LOG_RHO_SCAN, every
+COARSE_STEP) in one call of the equilibrium solver, then finely (FINE_STEP) across its turning points if it
+has any; on its solved points each local maximum of P followed by a local minimum is a loop;
 g on the stable branch below (a) and above (b), as functions of ln P, is compared on their common pressure
 range, and the first sign change of g_a - g_b gives the start; Newton iterations on
 (ln P_a - ln P_b, (g_a - g_b) rho_a / P_a) in (ln rho_a, ln rho_b) converge it to rounding. Loops whose
@@ -41,7 +42,8 @@ __all__ = ["LOG_RHO_SCAN", "T_MAX", "binodal", "apply_coexistence"]
 
 #: the densities scanned for loops, log10 g cm^-3 (the pressure-ionization band of H, He and the C/O K shells)
 LOG_RHO_SCAN = np.arange(-2.0, 5.0 + 1e-9, 0.01)
-#: no isotherm above this temperature is scanned (K): the loops close well below it (measured: H ~8e4 K)
+#: no isotherm above this temperature is scanned (K): the loops close well below it (measured: H near
+#: 9e4 K, the solar-like mix's He loop near 2e5 K, C/O loops at 1e5-3e5 K and none at 1e6, 2e6, 4e6 K)
 T_MAX = 1.0e6
 _MAX_LOOPS = 3
 _NEWTON = 30
@@ -90,48 +92,116 @@ def _loops_on_isotherm(lr, P, g):
     return out
 
 
+#: (composition key, options, T) -> the loops of that isotherm; bounded (about 1 kB per entry)
+_CACHE: dict = {}
+_CACHE_MAX = 50_000
+
+
 def binodal(T, comp: Composition, **options):
     """The coexisting densities at each temperature of ``T`` (1-d array, K).
 
-    Returns (rho_a, rho_b, P) arrays of shape (T.size, 3): up to three loops per isotherm, NaN-padded,
-    ordered by density. ``options`` are those of :func:`thermoplane.physics.evaluate` (electrons, pairs,
-    coulomb); the chemical picture is implied.
+    Returns (rho_a, rho_b, P) arrays of shape (T.size, 3): up to three loops per isotherm, found in order
+    of density; NaN where there is none or its tie line did not converge. ``options`` are those of :func:`thermoplane.physics.evaluate` (electrons, pairs,
+    coulomb); the chemical picture is implied. Isotherms already constructed for the same composition and
+    options are taken from a bounded cache (a zoom or a second map on the same rows costs nothing).
     """
     from .state import validate_options
     opts = validate_options(ionization="chemical", **options)
     T = np.asarray(T, dtype=float).ravel()
+    key = (comp.key(), opts["electrons"], bool(opts["pairs"]), bool(opts["coulomb"]))
+    out = np.full((3, T.size, _MAX_LOOPS), np.nan)
+    todo = np.array([i for i, t in enumerate(T) if (key, float(t)) not in _CACHE], dtype=np.intp)
+    if todo.size:
+        new = _construct(T[todo], comp, opts)
+        if len(_CACHE) + todo.size > _CACHE_MAX:
+            _CACHE.clear()
+        for k, i in enumerate(todo):
+            _CACHE[(key, float(T[i]))] = new[:, k, :]
+    for i, t in enumerate(T):
+        out[:, i, :] = _CACHE[(key, float(t))]
+    return out[0], out[1], out[2]
+
+
+#: the coarse scan that finds loops (log10 rho), and the half-width and step of the fine scan around each
+COARSE_STEP = 0.05
+FINE_STEP = 0.01
+FINE_MARGIN = 0.15
+#: loops wider than this in log rho are not looked for (the coarse scan's noise at NaN gaps)
+MAX_LOOP_WIDTH = 1.0
+
+
+def _scan(lrs, T, comp, opts):
+    """P and g on isotherms: lrs is (rows, points) of log10 rho, T (rows,)."""
+    RR = (10.0**lrs).ravel()
+    TT = np.repeat(T, lrs.shape[1])
+    r = _solve(RR, TT, comp, opts)
+    return r.P.reshape(lrs.shape), _gibbs(r, RR, TT).reshape(lrs.shape)
+
+
+def _construct(T, comp, opts):
     nT = T.size
-    ra = np.full((nT, _MAX_LOOPS), np.nan)
-    rb = np.full((nT, _MAX_LOOPS), np.nan)
-    Pc = np.full((nT, _MAX_LOOPS), np.nan)
+    res = np.full((3, nT, _MAX_LOOPS), np.nan)
     scan = np.flatnonzero(T < T_MAX)
     if scan.size == 0:
-        return ra, rb, Pc
-    lr = LOG_RHO_SCAN
-    RR = np.broadcast_to(10.0**lr, (scan.size, lr.size)).ravel()
-    TT = np.repeat(T[scan], lr.size)
-    r = _solve(RR, TT, comp, opts)
-    P = r.P.reshape(scan.size, lr.size)
-    g = _gibbs(r, RR, TT).reshape(scan.size, lr.size)
-    rows, cols, xa, xb = [], [], [], []
-    for k, i in enumerate(scan):                     # per isotherm (a few hundred numbers each), not per point
-        for j, (a, b) in enumerate(_loops_on_isotherm(lr, P[k], g[k])):
-            rows.append(i)
-            cols.append(j)
-            xa.append(a)
-            xb.append(b)
-    if not rows:
-        return ra, rb, Pc
-    rows, cols = np.array(rows), np.array(cols)
+        return res
+    # 1. a coarse scan of every isotherm finds the turning points of P
+    lr = np.arange(LOG_RHO_SCAN[0], LOG_RHO_SCAN[-1] + 1e-9, COARSE_STEP)
+    P, _ = _scan(np.broadcast_to(lr, (scan.size, lr.size)), T[scan], comp, opts)
+    windows = []
+    for k, i in enumerate(scan):                     # per isotherm (a hundred numbers each), not per point
+        ok = np.isfinite(P[k]) & (P[k] > 0)
+        x, p = lr[ok], P[k][ok]
+        if x.size < 5:
+            continue
+        d = np.sign(np.diff(p))
+        turns = np.flatnonzero(d[1:] != d[:-1]) + 1
+        for t0, t1 in zip(turns[:-1], turns[1:]):
+            if d[t0 - 1] > 0 > d[t0] and x[t1] - x[t0] < MAX_LOOP_WIDTH:      # a maximum, then a minimum
+                windows.append((i, x[t0] - FINE_MARGIN, x[t1] + FINE_MARGIN))
+    if not windows:
+        return res
+    # 2. a fine scan across the turning points of the isotherms that have them
+    width = max(b - a for _, a, b in windows)
+    m = int(np.ceil(width / FINE_STEP)) + 1
+    rows = np.array([w[0] for w in windows])
+    lrs = np.array([a + FINE_STEP * np.arange(m) for _, a, _ in windows])
+    Pf, gf = _scan(lrs, T[rows], comp, opts)
+    loops_rows, loops_cols, xa, xb = [], [], [], []
+    count = {}                                       # loops found so far on each isotherm (several windows)
+    for k, i in enumerate(rows):
+        for a, b in _loops_on_isotherm(lrs[k], Pf[k], gf[k]):
+            j = count.get(i, 0)
+            if j < _MAX_LOOPS:
+                loops_rows.append(i)
+                loops_cols.append(j)
+                xa.append(a)
+                xb.append(b)
+                count[i] = j + 1
+    if not loops_rows:
+        return res
+    rows_l, cols_l = np.array(loops_rows), np.array(loops_cols)
+    ya, yb, Pc, good = _polish(np.array(xa), np.array(xb), T[rows_l], comp, opts)
+    res[0, rows_l[good], cols_l[good]] = ya[good]
+    res[1, rows_l[good], cols_l[good]] = yb[good]
+    res[2, rows_l[good], cols_l[good]] = Pc[good]
+    return res
+
+
+def _polish(xa, xb, Tl, comp, opts):
+    """Newton iterations on the coexistence conditions from log10 rho_a, log10 rho_b; all loops at once."""
     y = np.log(10.0) * np.column_stack([xa, xb])         # ln rho_a, ln rho_b
-    Tl = T[rows]
-    done = np.zeros(rows.size, dtype=bool)
+    done = np.zeros(Tl.size, dtype=bool)
+    P_out = np.full(Tl.size, np.nan)
     for _ in range(_NEWTON):
-        n = rows.size
-        rr = np.exp(np.concatenate([y[:, 0], y[:, 1]]))
-        s = _solve(rr, np.concatenate([Tl, Tl]), comp, opts)
-        Pa, Pb = s.P[:n], s.P[n:]
-        ga, gb = _gibbs(s, rr, np.concatenate([Tl, Tl]))[:n], _gibbs(s, rr, np.concatenate([Tl, Tl]))[n:]
+        act = np.flatnonzero(~done)
+        if act.size == 0:
+            break
+        n = act.size
+        TT = np.concatenate([Tl[act], Tl[act]])
+        rr = np.exp(np.concatenate([y[act, 0], y[act, 1]]))
+        s = _solve(rr, TT, comp, opts)
+        g = _gibbs(s, rr, TT)
+        Pa, Pb, ga, gb = s.P[:n], s.P[n:], g[:n], g[n:]
         dPa, dPb = s.P_lnrho[:n], s.P_lnrho[n:]                 # dP / d ln rho at fixed T
         scale = Pa / rr[:n]
         R1 = np.log(Pa) - np.log(Pb)
@@ -142,16 +212,13 @@ def binodal(T, comp: Composition, **options):
         det = J11 * J22 - J12 * J21
         d0 = (R1 * J22 - R2 * J12) / det
         d1 = (J11 * R2 - J21 * R1) / det
-        step = np.clip(np.column_stack([d0, d1]), -0.05, 0.05)
-        y = y - np.where(done[:, None], 0.0, step)
-        done = done | ((np.abs(R1) < 1e-13) & (np.abs(R2) < 1e-12)) | (np.maximum(np.abs(d0), np.abs(d1)) < 1e-11)
-        if done.all():
-            break
-    good = done & (y[:, 0] < y[:, 1] - 1e-6)
-    ra[rows[good], cols[good]] = np.exp(y[good, 0])
-    rb[rows[good], cols[good]] = np.exp(y[good, 1])
-    Pc[rows[good], cols[good]] = Pa[good]
-    return ra, rb, Pc
+        conv = ((np.abs(R1) < 1e-13) & (np.abs(R2) < 1e-12)) | (np.maximum(np.abs(d0), np.abs(d1)) < 1e-11)
+        lost = ~np.isfinite(d0 + d1)
+        P_out[act[conv]] = Pa[conv]
+        y[act] -= np.where((conv | lost)[:, None], 0.0, np.clip(np.column_stack([d0, d1]), -0.05, 0.05))
+        done[act[conv | lost]] = True
+    good = np.isfinite(P_out) & (y[:, 0] < y[:, 1] - 1e-6)
+    return np.exp(y[:, 0]), np.exp(y[:, 1]), P_out, good
 
 
 def apply_coexistence(rho, T, comp: Composition, r, opts: dict):

@@ -124,3 +124,14 @@ def test_the_command_line_says_it_in_words(curve, capsys):
                  "--Z", "0", "--ionization", "chemical"])
     out = capsys.readouterr().out
     assert code in (0, None) and "two phases coexist" in out
+
+
+def test_a_solar_like_mix_has_a_hydrogen_and_a_helium_loop_and_carbon_oxygen_its_own():
+    solar = ph.Composition.from_xyz(0.70, 0.28, 0.02)
+    ra, rb, _ = binodal(np.array([5e4]), solar)
+    found = np.sort(ra[0][np.isfinite(ra[0])])
+    assert found.size == 2
+    assert 2.0 < found[0] < 6.0 and 30.0 < found[1] < 100.0      # g/cm^3: the H and the He loop
+    co = ph.Composition({"C-12": 0.5, "O-16": 0.5})
+    ra, rb, _ = binodal(np.array([1e5, 2e6]), co)
+    assert np.isfinite(ra[0, 0]) and np.isnan(ra[1]).all()
