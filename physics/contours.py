@@ -87,6 +87,8 @@ def grid_boundaries(grid, comp, keys=None, **physics_options):
         "quantum_ions": (grid.get("log_T_Tp"), 0.0, "y"),
         "h_ionization": (grid.get("ion_H"), HALF_IONIZATION, "y"),
         "he_ionization": (grid.get("ion_He2"), HALF_IONIZATION, "y"),
+        "h2_dissociation": (grid.get("h2_fraction"), 0.5, "y"),
+        "coexistence": (grid.get("coexistence"), 0.5, "x"),
     }
     out = []
     for key in keys:

@@ -35,7 +35,8 @@ LOG_T_LIMITS = (2.0, 12.0)
 RESOLUTION_LIMITS = (10, 1000)
 
 #: Fields a plane holds for the lines drawn from it (physics.contours), not offered as shadings.
-LEVEL_FIELDS = ("ion_H", "ion_He2", "log_pair_fraction", "log_P", "melt_margin", "log_T_Tp")
+LEVEL_FIELDS = ("ion_H", "ion_He2", "log_pair_fraction", "log_P", "melt_margin", "log_T_Tp", "h2_fraction",
+                "coexistence")
 
 #: Number of physics evaluations done by :func:`plane_grid` (cache misses).
 EVALUATIONS = 0
@@ -64,6 +65,8 @@ QUANTITIES: tuple[Quantity, ...] = (
     Quantity("nabla_ad", "∇_ad (adiabatic gradient)", None),
     Quantity("log_Gamma", "log₁₀ Γ (ion coupling)", 0.0),
     Quantity("mean_ionization", "free electrons / fully ionized count", None),
+    Quantity("metal_electron_fraction", "share of free electrons from metals", None),
+    Quantity("log_h2_fraction", "log₁₀ fraction of H in H₂ (chemical picture)", None),
     Quantity("eps_pp", "log₁₀ ε_pp (erg g⁻¹ s⁻¹)", None),
     Quantity("eps_cno", "log₁₀ ε_CNO (erg g⁻¹ s⁻¹)", None),
     Quantity("eps_triple_alpha", "log₁₀ ε_3α (erg g⁻¹ s⁻¹)", None),
@@ -174,6 +177,9 @@ def _compute(comp, lr, lt, n_rho, n_T, opts) -> PlaneGrid:
             "nabla_ad": s.nabla_ad,
             "log_Gamma": np.log10(s.Gamma),
             "mean_ionization": np.asarray(s.ye) / comp.ye,
+            "metal_electron_fraction": s.metal_electron_fraction,
+            # NaN where no H2 at all (every option but the chemical picture): nothing to shade
+            "log_h2_fraction": np.where(s.h2_fraction > 1e-30, np.log10(np.maximum(s.h2_fraction, 1e-300)), np.nan),
             # not shaded: the level fields of the lines drawn from the grid (physics.contours)
             "ion_H": s.ion_H,
             "ion_He2": s.ion_He2,
@@ -181,6 +187,8 @@ def _compute(comp, lr, lt, n_rho, n_T, opts) -> PlaneGrid:
             "log_P": np.log10(s.P),
             "melt_margin": s.melt_margin,
             "log_T_Tp": np.log10(s.T / s.T_p),
+            "h2_fraction": s.h2_fraction,
+            "coexistence": s.coexistence,
         }
     unavailable: list[str] = []
     try:

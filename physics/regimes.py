@@ -45,7 +45,8 @@ PARTIAL_IONIZATION = (0.01, 0.99)
 
 #: Keys of :func:`boundaries`, in drawing order.
 BOUNDARY_KEYS = ("equality", "degeneracy", "relativistic", "pairs", "coupling",
-                 "crystallization", "quantum_ions", "h_ionization", "he_ionization")
+                 "crystallization", "quantum_ions", "h_ionization", "he_ionization",
+                 "h2_dissociation", "coexistence")
 #: Words a reader sees next to each line.
 BOUNDARY_LABELS = {
     "equality": "P_rad = P_gas",
@@ -57,6 +58,8 @@ BOUNDARY_LABELS = {
     "quantum_ions": "quantum ions below (T = T_p)",
     "h_ionization": "H half ionized",
     "he_ionization": "He⁺ → He²⁺ half",
+    "h2_dissociation": "H₂ half dissociated",
+    "coexistence": "two phases coexist (plasma phase transition of the model)",
 }
 
 # (8 pi / 3) (m_e c / h)^3: electrons per cm^3 at x_F = 1 (T = 0 Fermi sphere, spin 2)
@@ -116,6 +119,8 @@ _FIELDS = {
     "quantum_ions": lambda s: _log_ratio(s.T_p, s.T),
     "h_ionization": lambda s: s.ion_H - HALF_IONIZATION,
     "he_ionization": lambda s: s.ion_He2 - HALF_IONIZATION,
+    "h2_dissociation": lambda s: np.asarray(s.h2_fraction, dtype=float) - 0.5,
+    "coexistence": lambda s: np.asarray(s.coexistence, dtype=float) - 0.5,
 }
 # x_F = 1 is a (nearly) vertical line: search it along log rho at fixed log T.
 _ALONG_RHO = {"relativistic"}
@@ -181,6 +186,10 @@ def _active_keys(comp, opts) -> list[str]:
         if key == "h_ionization" and comp.hydrogen <= 0:
             continue
         if key == "he_ionization" and comp.helium <= 0:
+            continue
+        if key in ("h2_dissociation", "coexistence") and opts["ionization"] != "chemical":
+            continue       # molecules and the two-phase construction exist in the chemical picture only
+        if key == "h2_dissociation" and comp.hydrogen <= 0:
             continue
         keys.append(key)
     return keys

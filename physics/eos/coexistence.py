@@ -92,33 +92,84 @@ def _loops_on_isotherm(lr, P, g):
     return out
 
 
-#: (composition key, options, T) -> the loops of that isotherm; bounded (about 1 kB per entry)
+#: (composition key, options, T or node index) -> the loops of that isotherm; bounded (about 100 B per entry)
 _CACHE: dict = {}
-_CACHE_MAX = 50_000
+_CACHE_MAX = 200_000
+#: isotherms are scanned on a fixed ladder in log10 T (nodes k * NODE_STEP); any other T starts its tie lines
+#: from its two neighbouring nodes and converges them at its own T
+NODE_STEP = 0.02
+
+
+def _cached(key, tags, build):
+    """Loops for each tag (hashable) from the cache, building the missing ones with build(indices)."""
+    todo = [i for i, t in enumerate(tags) if (key, t) not in _CACHE]
+    if todo:
+        new = build(np.array(todo, dtype=np.intp))
+        if len(_CACHE) + len(todo) > _CACHE_MAX:
+            _CACHE.clear()
+        for k, i in enumerate(todo):
+            _CACHE[(key, tags[i])] = new[:, k, :]
+    return np.stack([_CACHE[(key, t)] for t in tags], axis=1) if tags else np.zeros((3, 0, _MAX_LOOPS))
 
 
 def binodal(T, comp: Composition, **options):
     """The coexisting densities at each temperature of ``T`` (1-d array, K).
 
     Returns (rho_a, rho_b, P) arrays of shape (T.size, 3): up to three loops per isotherm, found in order
-    of density; NaN where there is none or its tie line did not converge. ``options`` are those of :func:`thermoplane.physics.evaluate` (electrons, pairs,
-    coulomb); the chemical picture is implied. Isotherms already constructed for the same composition and
-    options are taken from a bounded cache (a zoom or a second map on the same rows costs nothing).
+    of density; NaN where there is none or its tie line did not converge. ``options`` are those of
+    :func:`thermoplane.physics.evaluate` (electrons, pairs, coulomb); the chemical picture is implied.
+
+    The isotherms are scanned on a ladder in log10 T (NODE_STEP); at any T between two nodes each tie line
+    present at both starts from their interpolation (from the one node that has it, near the critical point
+    or the low-temperature gap) and is converged at T itself. Both the nodes and the
+    converged temperatures are cached per composition and options, so a second map, a zoom or a boundary
+    refinement costs a few equation-of-state calls per new temperature.
     """
     from .state import validate_options
     opts = validate_options(ionization="chemical", **options)
     T = np.asarray(T, dtype=float).ravel()
     key = (comp.key(), opts["electrons"], bool(opts["pairs"]), bool(opts["coulomb"]))
     out = np.full((3, T.size, _MAX_LOOPS), np.nan)
-    todo = np.array([i for i, t in enumerate(T) if (key, float(t)) not in _CACHE], dtype=np.intp)
-    if todo.size:
-        new = _construct(T[todo], comp, opts)
-        if len(_CACHE) + todo.size > _CACHE_MAX:
-            _CACHE.clear()
-        for k, i in enumerate(todo):
-            _CACHE[(key, float(T[i]))] = new[:, k, :]
-    for i, t in enumerate(T):
-        out[:, i, :] = _CACHE[(key, float(t))]
+    sel = np.flatnonzero(T < T_MAX)
+    if sel.size == 0:
+        return out[0], out[1], out[2]
+    lt = np.log10(T[sel])
+    k0 = np.floor(lt / NODE_STEP + 1e-9).astype(np.int64)
+    on_node = np.abs(lt - k0 * NODE_STEP) < 1e-9
+    nodes = sorted(set(k0.tolist()) | set((k0[~on_node] + 1).tolist()))
+    node_T = 10.0 ** (np.array(nodes) * NODE_STEP)
+    node_res = _cached(key, [("node", k) for k in nodes], lambda idx: _construct(node_T[idx], comp, opts))
+    at = {k: j for j, k in enumerate(nodes)}
+
+    def between(idx):
+        """Tie lines at T[sel][idx] from their neighbouring nodes."""
+        res = np.full((3, idx.size, _MAX_LOOPS), np.nan)
+        lo = np.array([at[k] for k in k0[idx]])
+        hi = np.array([at[k + 1] for k in k0[idx]])
+        w = (lt[idx] - k0[idx] * NODE_STEP) / NODE_STEP
+        a_lo, a_hi = np.log10(node_res[0, lo]), np.log10(node_res[0, hi])
+        b_lo, b_hi = np.log10(node_res[1, lo]), np.log10(node_res[1, hi])
+        # the same loop at both nodes (finite, and close in density): interpolate; at one node only (near
+        # the critical point, or where the low-T gap begins): start from that node's tie line
+        both = np.isfinite(a_lo) & np.isfinite(a_hi) & (np.abs(a_lo - a_hi) < 0.2) & (np.abs(b_lo - b_hi) < 0.2)
+        wc = w[:, None]
+        xa = np.where(both, (1 - wc) * a_lo + wc * a_hi, np.where(np.isfinite(a_lo), a_lo, a_hi))
+        xb = np.where(both, (1 - wc) * b_lo + wc * b_hi, np.where(np.isfinite(a_lo), b_lo, b_hi))
+        r, c = np.nonzero(np.isfinite(xa) & np.isfinite(xb))
+        if r.size:
+            ya, yb, Pc, good = _polish(xa[r, c], xb[r, c], T[sel][idx][r], comp, opts)
+            res[0, r[good], c[good]] = ya[good]
+            res[1, r[good], c[good]] = yb[good]
+            res[2, r[good], c[good]] = Pc[good]
+        return res
+
+    off = np.flatnonzero(~on_node)
+    if off.size:
+        tags = [("T", float(t)) for t in T[sel][off]]
+        out[:, sel[off], :] = _cached(key, tags, lambda idx: between(off[idx]))
+    on = np.flatnonzero(on_node)
+    if on.size:
+        out[:, sel[on], :] = node_res[:, [at[k] for k in k0[on]], :]
     return out[0], out[1], out[2]
 
 

@@ -48,7 +48,7 @@ FIELD_UNITS = {
     "dP_drho": "dyn cm^-2 / (g cm^-3)", "dP_dT": "dyn cm^-2 K^-1",
     "dE_drho": "erg g^-1 / (g cm^-3)", "dS_dT": "erg g^-1 K^-2",
     "ion_H": "", "ion_He1": "", "ion_He2": "", "mean_Z": "",
-    "n_minus": "cm^-3", "n_plus": "cm^-3", "h2_fraction": "", "coexistence": "",
+    "n_minus": "cm^-3", "n_plus": "cm^-3", "h2_fraction": "", "coexistence": "", "metal_electron_fraction": "",
     "crystallized": "", "T_p": "K", "melt_margin": "", "c_V_ion": "erg g^-1 K^-1", "c_V_e": "erg g^-1 K^-1",
     "c_V_rad": "erg g^-1 K^-1",
 }
@@ -72,6 +72,8 @@ FIELD_DESCRIPTIONS = {
     "ion_He2": "fraction of helium doubly ionized", "mean_Z": "mean free electrons per nucleus",
     "n_minus": "electron number density", "n_plus": "positron number density",
     "h2_fraction": "fraction of hydrogen nuclei bound in H2 (chemical picture only; 0 otherwise)",
+    "metal_electron_fraction": "fraction of the free electrons given by elements heavier than He (always "
+                               "fully ionized except in the chemical picture)",
     "coexistence": "1 where two phases coexist (the chemical picture's plasma phase transition: common tangent "
                    "of F in V, P constant along the isotherm); 0 elsewhere",
     "crystallized": "1 where the ion crystal has the lower free energy, else 0",
@@ -125,6 +127,7 @@ class ThermoState:
     n_plus: np.ndarray
     h2_fraction: np.ndarray
     coexistence: np.ndarray
+    metal_electron_fraction: np.ndarray
     crystallized: np.ndarray
     T_p: np.ndarray
     melt_margin: np.ndarray
@@ -238,7 +241,16 @@ def evaluate(rho, T, comp: Composition, **options) -> ThermoState:
         dE_drho=total.E_rho, dS_dT=total.S_T, ion_H=gas.ion_H, ion_He1=gas.ion_He1, ion_He2=gas.ion_He2,
         mean_Z=gas.mean_Z, n_minus=gas.n_minus, n_plus=gas.n_plus, crystallized=crystallized, T_p=T_p,
         melt_margin=melt_margin, h2_fraction=np.zeros_like(rho), coexistence=np.zeros_like(rho),
+        metal_electron_fraction=_metal_electron_fraction(rho, gas.n_net, comp),
         c_V_ion=c_V_ion, c_V_e=resp["c_V"] - c_V_ion - rad.E_T, c_V_rad=rad.E_T, **resp)
+
+
+def _metal_electron_fraction(rho, n_free, comp: Composition) -> np.ndarray:
+    """Free electrons from elements heavier than He over all free electrons, where metals are fully ionized."""
+    heavy = comp.Z > 2
+    per_gram = float(np.sum(comp.X[heavy] * comp.Z[heavy] / (comp.A[heavy] * const.m_u)))
+    with np.errstate(divide="ignore", invalid="ignore"):
+        return np.clip(rho * per_gram / n_free, 0.0, 1.0)
 
 
 def _plasma_temperature(rho, T, comp: Composition) -> np.ndarray:
@@ -276,6 +288,7 @@ def _chemical_state(rho, T, comp: Composition, opts: dict, rad: Part) -> ThermoS
         dE_drho=total.E_rho, dS_dT=total.S_T, ion_H=rs(r.ion_H), ion_He1=rs(r.ion_He1), ion_He2=rs(r.ion_He2),
         mean_Z=rs(r.n_e) / n_nuc, n_minus=rs(r.n_minus), n_plus=rs(r.n_plus), h2_fraction=rs(r.h2_fraction),
         coexistence=rs(two_phase),
+        metal_electron_fraction=np.clip(rs(r.metal_electrons) * rho / rs(r.n_e), 0.0, 1.0),
         # the chemical picture's ions are the liquid one-component plasma so far: no crystal, no c_V split
         crystallized=np.zeros_like(rho), T_p=_plasma_temperature(rho, T, comp), melt_margin=np.full_like(rho, np.nan),
         c_V_ion=np.full_like(rho, np.nan), c_V_e=np.full_like(rho, np.nan), c_V_rad=rad.E_T, **resp)

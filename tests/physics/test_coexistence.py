@@ -135,3 +135,35 @@ def test_a_solar_like_mix_has_a_hydrogen_and_a_helium_loop_and_carbon_oxygen_its
     co = ph.Composition({"C-12": 0.5, "O-16": 0.5})
     ra, rb, _ = binodal(np.array([1e5, 2e6]), co)
     assert np.isfinite(ra[0, 0]) and np.isnan(ra[1]).all()
+
+
+def test_the_plane_offers_h2_and_metal_electrons_and_draws_the_chemical_lines():
+    from thermoplane.physics import contours, plane
+    solar = ph.Composition.from_xyz(0.70, 0.28, 0.02)
+    g = plane.plane_grid(solar, log_rho=(-10.0, 3.0), log_T=(3.0, 5.5), n_rho=40, n_T=30, ionization="chemical")
+    h2 = g.get("log_h2_fraction")
+    assert np.nanmax(h2) > -0.01                     # molecular hydrogen in the cool corner
+    me = g.get("metal_electron_fraction")
+    assert np.nanmax(me) > 0.9 and np.nanmin(me) < 0.1    # metals give the electrons of cool gas only
+    lines = {key: (xs, ys) for key, _, xs, ys in contours.grid_boundaries(g, solar, ionization="chemical")}
+    assert lines["h2_dissociation"][0].size > 0
+    xs, ys = lines["coexistence"]
+    on = np.isfinite(xs) & np.isfinite(ys)
+    assert on.sum() >= 4
+    assert ys[on].min() > 3.9 and ys[on].max() < 5.5 and xs[on].min() > 0.0      # 1e4-3e5 K, above 1 g/cm^3
+    # the default physics has neither line, and no H2 to shade
+    d = plane.plane_grid(solar, log_rho=(-10.0, 3.0), log_T=(3.0, 5.5), n_rho=40, n_T=30)
+    assert np.all(np.isnan(d.get("log_h2_fraction")))
+    keys = {key for key, *_ in contours.grid_boundaries(d, solar)}
+    assert not keys & {"h2_dissociation", "coexistence"}
+
+
+def test_half_dissociation_line_follows_the_state():
+    solar = ph.Composition.from_xyz(0.70, 0.28, 0.02)
+    b = {x.key: x for x in ph.boundaries(solar, log_rho=(-10.0, -4.0), log_T=(3.0, 4.0), n=12,
+                                         ionization="chemical")}
+    line = b["h2_dissociation"]
+    ok = np.isfinite(line.log_T)
+    assert ok.sum() >= 6
+    s = ph.evaluate(10.0 ** line.log_rho[ok], 10.0 ** line.log_T[ok], solar, ionization="chemical")
+    np.testing.assert_allclose(s.h2_fraction, 0.5, atol=1e-3)
