@@ -27,10 +27,15 @@ OPTION_HELP = {
     ("ionization", "saha"): "Saha equilibrium for H and He with pressure ionization at high density; "
                             "metals fully ionized.",
     ("ionization", "full"): "Every atom fully ionized everywhere: wrong in cool envelopes and atmospheres.",
+    ("ionization", "chemical"): "Experimental: one free energy minimised over H₂, H, H⁺ and every ionization "
+                                "stage of every element, with pressure ionization from an excluded volume and "
+                                "two coexisting phases where its isotherms loop. Slow (seconds to tens of "
+                                "seconds per map); stiff in the pressure-ionization band (see About).",
     "coulomb": "Electrostatic (Coulomb) correction to pressure and energy from a one-component-plasma fit.",
     "pairs": "Electron–positron pairs created thermally above about 10⁹ K.",
 }
-OPTION_LABELS = {"fermi": "Fermi–Dirac", "classical": "classical", "saha": "Saha (H, He)", "full": "full"}
+OPTION_LABELS = {"fermi": "Fermi–Dirac", "classical": "classical", "saha": "Saha (H, He)", "full": "full",
+                 "chemical": "chemical picture (experimental, slow)"}
 
 
 def _number(id_, value, step=0.01, min_=0.0, max_=1.0, label="", title=""):
@@ -270,11 +275,15 @@ def about_physics() -> list:
           "The lines on the map are read off the map's own pixels (refine the resolution for finer lines)."),
         P("Being built: one free energy for partly ionized, pressure-ionized and molecular matter (H₂, every "
           "ionization stage of every element, the Coulomb term of each ion, an excluded volume whose derivative "
-          "is the occupation probability), with every quantity from one minimum. It is available from Python "
-          "and the command line as ionization=\"chemical\" (experimental: stiff in the pressure-ionization "
-          "band, where it returns two coexisting phases across the van der Waals loops of its isotherms; "
-          "about a thousand times slower per point than this map allows, not yet with the dense-plasma "
-          "terms); see the README."),
+          "is the occupation probability), with every quantity from one minimum. It is offered under "
+          "Physics as \"chemical picture\" and from Python and the command line as ionization=\"chemical\" "
+          "(experimental: stiff in the pressure-ionization "
+          "band, where it returns two coexisting phases across the van der Waals loops of its isotherms, "
+          "and leaves some points without a root (shown grey); a map takes seconds to tens of seconds, and "
+          "the first one of a composition builds its two-phase lines; no crystal, no screening or "
+          "exchange-correlation yet). With it the map can shade the fraction of H in H₂ and the share of free "
+          "electrons from metals, and draws the H₂ half-dissociation line and the edges of the two-phase "
+          "regions; see the README."),
         P("Results are for exploration and checks. For a publication, compare against a full tabulated "
           "equation of state.", className="strong"),
     ]

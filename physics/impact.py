@@ -22,7 +22,7 @@ from typing import NamedTuple
 import numpy as np
 
 from . import plane
-from .eos import DEFAULTS, MAP_OPTIONS as OPTIONS
+from .eos import DEFAULTS, IMPACT_OPTIONS as OPTIONS
 
 __all__ = ["Ingredient", "ingredients", "IMPACT_FIELDS", "IMPACT_THRESHOLD", "impact_quantities",
            "impact_percent", "impact_categories", "category_labels"]

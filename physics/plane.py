@@ -38,6 +38,9 @@ RESOLUTION_LIMITS = (10, 1000)
 LEVEL_FIELDS = ("ion_H", "ion_He2", "log_pair_fraction", "log_P", "melt_margin", "log_T_Tp", "h2_fraction",
                 "coexistence")
 
+#: The H2 map is blank where less than this fraction of H is molecular (traces would set the colour range).
+H2_FLOOR = 1e-6
+
 #: Number of physics evaluations done by :func:`plane_grid` (cache misses).
 EVALUATIONS = 0
 
@@ -66,7 +69,7 @@ QUANTITIES: tuple[Quantity, ...] = (
     Quantity("log_Gamma", "log₁₀ Γ (ion coupling)", 0.0),
     Quantity("mean_ionization", "free electrons / fully ionized count", None),
     Quantity("metal_electron_fraction", "share of free electrons from metals", None),
-    Quantity("log_h2_fraction", "log₁₀ fraction of H in H₂ (chemical picture)", None),
+    Quantity("log_h2_fraction", "log₁₀ fraction of H in H₂ (chemical picture; blank below 10⁻⁶)", None),
     Quantity("eps_pp", "log₁₀ ε_pp (erg g⁻¹ s⁻¹)", None),
     Quantity("eps_cno", "log₁₀ ε_CNO (erg g⁻¹ s⁻¹)", None),
     Quantity("eps_triple_alpha", "log₁₀ ε_3α (erg g⁻¹ s⁻¹)", None),
@@ -178,8 +181,9 @@ def _compute(comp, lr, lt, n_rho, n_T, opts) -> PlaneGrid:
             "log_Gamma": np.log10(s.Gamma),
             "mean_ionization": np.asarray(s.ye) / comp.ye,
             "metal_electron_fraction": s.metal_electron_fraction,
-            # NaN where no H2 at all (every option but the chemical picture): nothing to shade
-            "log_h2_fraction": np.where(s.h2_fraction > 1e-30, np.log10(np.maximum(s.h2_fraction, 1e-300)), np.nan),
+            # blank below H2_FLOOR (and under every option but the chemical picture, which has no H2)
+            "log_h2_fraction": np.where(s.h2_fraction >= H2_FLOOR, np.log10(np.maximum(s.h2_fraction, 1e-300)),
+                                        np.nan),
             # not shaded: the level fields of the lines drawn from the grid (physics.contours)
             "ion_H": s.ion_H,
             "ion_He2": s.ion_He2,

@@ -6,8 +6,9 @@ built beside it, one module per term of F(V, T, {N_j}), so that the file list of
 sum: ``atomic_data``, ``species``, ``coulomb_term``, ``electron_kernel``, ``jets``, ``equilibrium``.
 """
 
-from .state import (DEFAULTS, EXPERIMENTAL, FIELD_DESCRIPTIONS, FIELD_UNITS, MAP_OPTIONS, OPTIONS, ThermoState,
+from .state import (DEFAULTS, EXPERIMENTAL, FIELD_DESCRIPTIONS, FIELD_UNITS, MAP_OPTIONS, IMPACT_OPTIONS, OPTIONS,
+                    ThermoState,
                     equality_temperature, evaluate, validate_options)
 
 __all__ = ["ThermoState", "evaluate", "equality_temperature", "FIELD_UNITS", "FIELD_DESCRIPTIONS", "OPTIONS",
-           "DEFAULTS", "MAP_OPTIONS", "EXPERIMENTAL", "validate_options"]
+           "DEFAULTS", "MAP_OPTIONS", "IMPACT_OPTIONS", "EXPERIMENTAL", "validate_options"]

@@ -19,7 +19,7 @@ from ..thermo import Part, radiation, response
 from .dense_plasma import dense_parts, mixture_plasma_temperature
 
 __all__ = ["ThermoState", "evaluate", "equality_temperature", "FIELD_UNITS", "FIELD_DESCRIPTIONS",
-           "OPTIONS", "MAP_OPTIONS", "EXPERIMENTAL", "validate_options"]
+           "OPTIONS", "MAP_OPTIONS", "IMPACT_OPTIONS", "EXPERIMENTAL", "validate_options"]
 
 #: Allowed values of each physics option; the first is the default.
 OPTIONS = {
@@ -29,11 +29,13 @@ OPTIONS = {
     "pairs": (True, False),
 }
 DEFAULTS = {key: values[0] for key, values in OPTIONS.items()}
-#: Option values a live map cannot afford: the chemical picture solves an equilibrium per point (~1e3 times
-#: the default's cost; Python and command line only until it is tabulated, see the README).
+#: Experimental option values: the chemical picture solves an equilibrium per point (~1e2-1e3 times the
+#: default's cost; see the README). The dashboard offers it, labelled so; the impact maps do not.
 EXPERIMENTAL = {("ionization", "chemical")}
-#: The options the dashboard and the impact maps offer.
-MAP_OPTIONS = {key: tuple(v for v in values if (key, v) not in EXPERIMENTAL) for key, values in OPTIONS.items()}
+#: The options the dashboard offers (experimental ones included, labelled).
+MAP_OPTIONS = {key: tuple(values) for key, values in OPTIONS.items()}
+#: The options the impact maps compare (one more plane each: the experimental ones would cost too much).
+IMPACT_OPTIONS = {key: tuple(v for v in values if (key, v) not in EXPERIMENTAL) for key, values in OPTIONS.items()}
 
 
 #: cgs unit of every ThermoState field (for display and export).

@@ -53,7 +53,8 @@ def test_composition_quantity_and_pinned_point(server_url, page):
     page.wait_for_function(f"(p) => {{ const y = ({EQUALITY_Y})(); return y && Math.abs(y[0] - p) > 1e-3; }}",
                            arg=before[0], timeout=TIMEOUT)
     assert page.input_value("#comp-Z") == "0.52"
-    assert "X=0.2" in page.input_value("#share-link")
+    # the link is written by its own callback, which may land after the map under load
+    page.wait_for_function("() => document.querySelector('#share-link').value.includes('X=0.2')", timeout=TIMEOUT)
 
     _choose(page, "map-quantity", "electron degeneracy η")
     page.wait_for_function(f"() => String(({HEAT_META})()).startsWith('electron degeneracy η')", timeout=TIMEOUT)
