@@ -26,3 +26,10 @@ def trace_values(graph_id: str, meta: str, attr: str) -> str:
   if (!t) return null;
   return decode(t['{attr}']).filter(v => v !== null && Number.isFinite(v));
 }}"""
+
+
+def annotation_texts(graph_id: str) -> str:
+    """A JS function returning the texts of the figure's annotations (the words beside the lines)."""
+    return f"""() => {{ const gd = document.querySelector('#{graph_id} .js-plotly-plot');
+  if (!gd || !gd.layout || !gd.layout.annotations) return [];
+  return gd.layout.annotations.map(a => a.text || ''); }}"""

@@ -6,7 +6,7 @@ from __future__ import annotations
 import pytest
 
 from tests.conftest import screenshot
-from tests.e2e.plotly_js import trace_values
+from tests.e2e.plotly_js import annotation_texts, trace_values
 
 pytestmark = pytest.mark.e2e
 
@@ -15,9 +15,7 @@ VIEW = "?ionization=chemical&resolution=60&quantity=log_h2_fraction"
 TIMEOUT = 300000
 H2_X = trace_values("plane-graph", "h2_dissociation", "x")
 COEX_X = trace_values("plane-graph", "coexistence", "x")
-LABELS = """() => { const gd = document.querySelector('#plane-graph .js-plotly-plot');
-  if (!gd || !gd.layout || !gd.layout.annotations) return [];
-  return gd.layout.annotations.map(a => a.text || ''); }"""
+LABELS = annotation_texts("plane-graph")
 
 
 def test_h2_shading_and_the_chemical_lines(server_url, page):

@@ -5,7 +5,7 @@ from __future__ import annotations
 import pytest
 
 from tests.conftest import screenshot
-from tests.e2e.plotly_js import trace_values
+from tests.e2e.plotly_js import annotation_texts, trace_values
 
 pytestmark = pytest.mark.e2e
 
@@ -14,9 +14,7 @@ VIEW = "?mix=C-12%3D0.5%2CO-16%3D0.5&mix_on=1&resolution=120"
 TIMEOUT = 180000
 MELT_X = trace_values("plane-graph", "crystallization", "x")
 QUANTUM_X = trace_values("plane-graph", "quantum_ions", "x")
-LABELS = """() => { const gd = document.querySelector('#plane-graph .js-plotly-plot');
-  if (!gd || !gd.layout || !gd.layout.annotations) return [];
-  return gd.layout.annotations.map(a => a.text || ''); }"""
+LABELS = annotation_texts("plane-graph")
 
 
 def test_melting_and_quantum_ion_lines_and_cv_split(server_url, page):
