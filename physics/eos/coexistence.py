@@ -217,6 +217,11 @@ def _construct(T, comp, opts):
     rows = np.array([w[0] for w in windows])
     lrs = np.array([a + FINE_STEP * np.arange(m) for _, a, _ in windows])
     Pf, gf = _scan(lrs, T[rows], comp, opts)
+    # each window ends where it ends (the rows are padded to the widest): what a window finds must not
+    # depend on which other isotherms were scanned with it
+    beyond = lrs > np.array([b for _, _, b in windows])[:, None] + 1e-9
+    Pf[beyond] = np.nan
+    gf[beyond] = np.nan
     loops_rows, loops_cols, xa, xb = [], [], [], []
     count = {}                                       # loops found so far on each isotherm (several windows)
     for k, i in enumerate(rows):
@@ -263,9 +268,11 @@ def _polish(xa, xb, Tl, comp, opts):
         det = J11 * J22 - J12 * J21
         d0 = (R1 * J22 - R2 * J12) / det
         d1 = (J11 * R2 - J21 * R1) / det
-        conv = ((np.abs(R1) < 1e-13) & (np.abs(R2) < 1e-12)) | (np.maximum(np.abs(d0), np.abs(d1)) < 1e-11)
+        # converged: the residuals at rounding, or a stalled step with residuals already small
+        small = (np.abs(R1) < 1e-11) & (np.abs(R2) < 1e-10)
+        conv = ((np.abs(R1) < 1e-13) & (np.abs(R2) < 1e-12)) | (small & (np.maximum(np.abs(d0), np.abs(d1)) < 1e-13))
         lost = ~np.isfinite(d0 + d1)
-        P_out[act[conv]] = Pa[conv]
+        P_out[act[conv]] = 0.5 * (Pa + Pb)[conv]
         y[act] -= np.where((conv | lost)[:, None], 0.0, np.clip(np.column_stack([d0, d1]), -0.05, 0.05))
         done[act[conv | lost]] = True
     good = np.isfinite(P_out) & (y[:, 0] < y[:, 1] - 1e-6)
