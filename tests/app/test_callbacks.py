@@ -450,3 +450,14 @@ def test_zoomed_ranges_recompute_the_plane():
     assert min(hm.x) == pytest.approx(-2.0) and max(hm.x) == pytest.approx(3.5)
     assert min(hm.y) == pytest.approx(5.25) and max(hm.y) == pytest.approx(7.0)
     assert encode_view({**VIEW, "log_rho": (-2.0, 3.5), "log_T": (5.25, 7.0)}) == out["view"]["query"]
+
+
+@pytest.mark.parametrize("change", [{}, {"quantity": "regime"}, {"quantity": "eta"}, {"quantity": "gamma1"},
+                                    {"quantity": "nu_process"}, {"quantity": "impact_which", "resolution": 30},
+                                    {"presentation": True}, {"colorscale": "magma"}])
+def test_map_figures_pass_plotly_validation(change):
+    """The map figure is built without plotly's validators (for speed); here they check it."""
+    import plotly.graph_objects as go
+    out = map_cb.update_map(**controls(**change))
+    assert out["figure"] is not no_update, out
+    go.Figure(out["figure"].to_plotly_json())            # raises ValueError on anything plotly.js does not know
