@@ -252,8 +252,15 @@ def plane_figure(log_rho: np.ndarray, log_T: np.ndarray, z: np.ndarray, *, z_lab
     traces.append(dict(type="heatmap", **heat))
     if unphysical is not None:
         grey = "#9e9e9e"
-        traces.append(dict(type="heatmap", x=heat["x"], y=heat["y"],
-                           z=np.where(np.asarray(unphysical, bool), 1.0, np.nan).astype(np.float32),
+        # only the rows and columns that hold such pixels (often a corner of the plane): the rest would
+        # be NaN sent for nothing. One pixel more on each side, so plotly sees at least two columns and
+        # rows and gives the cells their true width.
+        mask = np.asarray(unphysical, bool)
+        rows, cols = np.flatnonzero(mask.any(axis=1)), np.flatnonzero(mask.any(axis=0))
+        r = slice(max(rows[0] - 1, 0), rows[-1] + 2)
+        c = slice(max(cols[0] - 1, 0), cols[-1] + 2)
+        traces.append(dict(type="heatmap", x=heat["x"][c], y=heat["y"][r],
+                           z=np.where(mask[r, c], 1.0, np.nan).astype(np.float32),
                            colorscale=[[0, grey], [1, grey]], showscale=False, zsmooth=False, hoverongaps=False,
                            name=unphysical_label, meta="unphysical",
                            hovertemplate="log ρ = %{x:.2f}<br>log T = %{y:.2f}<br>" + unphysical_label

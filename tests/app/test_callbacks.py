@@ -168,6 +168,18 @@ def test_no_physical_value_is_grey_with_a_legend_entry():
     (grey,) = [t for t in fig.data if t.meta == "unphysical"]
     mask = np.isfinite(np.asarray(grey.z, dtype=float))
     assert mask.any() and "P ≤ 0" in grey.hovertemplate
+    # the grey layer holds only the rows and columns with such pixels (one more each side), in place
+    heat = heatmap(fig)
+    j0, i0 = int(np.searchsorted(heat.x, grey.x[0])), int(np.searchsorted(heat.y, grey.y[0]))
+    assert np.array_equal(heat.x[j0:j0 + len(grey.x)], grey.x) and np.array_equal(heat.y[i0:i0 + len(grey.y)], grey.y)
+    comp = ph.Composition.from_xyz(VIEW["X"], VIEW["Y"], VIEW["Z"], metals=VIEW["metals"])
+    opts = eos.validate_options(electrons=VIEW["electrons"], ionization="full", coulomb=True, pairs=VIEW["pairs"])
+    n = VIEW["resolution"]
+    grid = plane.plane_grid(comp, VIEW["log_rho"], VIEW["log_T"], n, n, **opts)
+    bad = ~np.isfinite(np.asarray(grid.get("log_P"), dtype=float))
+    full = np.zeros_like(bad)
+    full[i0:i0 + len(grey.y), j0:j0 + len(grey.x)] = mask
+    assert np.array_equal(full, bad)
     assert any(t.name == map_cb.UNPHYSICAL_LABEL and t.showlegend for t in fig.data)
     # the default physics has a physical value everywhere: no grey region
     assert not [t for t in map_cb.update_map(**controls())["figure"].data if t.meta == "unphysical"]
