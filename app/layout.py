@@ -306,11 +306,16 @@ def point_panel() -> html.Section:
     ], className="panel", id="panel-point")
 
 
+#: The spinner over the map shows only for an answer slower than this (a full map; the coarse previews while a
+#: slider moves come sooner, and a spinner popping up and down with each would cost the browser a redraw).
+LOADING_DELAY_MS = 700
+
+
 def map_area() -> html.Div:
     return html.Div([
         dcc.Loading(dcc.Graph(id="plane-graph", config=figures.graph_config(), className="plane-graph",
                               style={"height": "72vh", "minHeight": "480px"}),
-                    type="circle", delay_show=250, id="plane-loading"),
+                    type="circle", delay_show=LOADING_DELAY_MS, id="plane-loading"),
         dcc.Store(id="map-shape"),            # fingerprint of the figure shown (see app.delta)
         html.Div("Hover over the map to read a point.", id="hover-readout", className="readout hover-line"),
         tracks_results(),
