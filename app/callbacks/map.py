@@ -347,6 +347,10 @@ def register(app) -> None:
         preview = is_preview(drag, ctx.triggered_prop_ids)
         out = update_map(preview=preview, **(dragged_controls(drag, controls) if preview else controls))
         out["shape"] = no_update
+        if preview:
+            # while the hand moves, an empty message is not sent again (each output costs the browser a
+            # pass over the page's components); the full map on release writes them all
+            out.update({m: no_update for m in MESSAGES if out[m] == ""})
         if out["figure"] is not no_update:
             out["figure"], out["shape"] = delta.figure_update(out["figure"], shape)
         return out
