@@ -74,6 +74,11 @@ window.dash_clientside = Object.assign({}, window.dash_clientside, {
       for (i = 0; i < 3; i++) {
         k = keys[i];
         if (trig.indexOf("comp-" + k + "-slider.value") >= 0 && typeof sliders[i] === "number") {
+          /* the slider following a box typed by hand (boxToSlider, clamped to 0..1) is no release: a typed
+             -0.5 stays in its box, where the map's message says what is allowed */
+          var typed = Number(boxes[i]);
+          if (!(dragging && drag.key === k) && boxes[i] !== null && boxes[i] !== "" && isFinite(typed)
+              && tp.same(Math.min(Math.max(typed, 0), 1), sliders[i])) { return out; }
           st.latest = null; st.sent = null; st.inflight = 0;
           if (!tp.same(tp.tidy(sliders[i]), boxes[i])) { out[i] = tp.tidy(sliders[i]); }
           /* with "Z = 1 − X − Y" ticked, Z goes with X or Y (as the rule on the server would write it), so
