@@ -69,6 +69,7 @@ def _fraction_row(key: str, value, title: str) -> html.Div:
         _number(f"comp-{key}", value, label=key, title=title),
         html.Div(dcc.Slider(id=f"comp-{key}-slider", min=0, max=1, step=0.005, value=_slider_value(value),
                             updatemode="mouseup", marks={0: "0", 0.5: "0.5", 1: "1"},
+                            tooltip={"placement": "bottom"},          # the value under the hand while it moves
                             allow_direct_input=False, className="fraction-slider"),
                  className="slider-box", title=f"drag to change {key}"),
     ], className="field-row fraction-row")
@@ -83,7 +84,7 @@ def composition_panel(c: dict) -> html.Section:
         _fraction_row("X", c["X"], "hydrogen (H-1) mass fraction"),
         _fraction_row("Y", c["Y"], "helium (He-4) mass fraction"),
         _fraction_row("Z", c["Z"], "metal mass fraction"),
-        dcc.Store(id="comp-drag", data={"drag": False}),
+        dcc.Store(id="comp-drag", data={"drag": False}), dcc.Store(id="map-drawn"),
         html.Div([dcc.Checklist(id="comp-zauto", options=[{"label": " Z = 1 − X − Y", "value": "auto"}],
                                 value=c["zauto"], inline=True, className="check"),
                   html.Button("normalise", id="comp-normalise", n_clicks=0, className="small",
@@ -315,11 +316,17 @@ def point_panel() -> html.Section:
     ], className="panel", id="panel-point")
 
 
+#: The spinner over the map shows only for an answer slower than this (a full map; the coarse previews while a
+#: slider moves come sooner, and a spinner popping up and down with each would cost the browser a redraw).
+LOADING_DELAY_MS = 700
+
+
 def map_area() -> html.Div:
     return html.Div([
         dcc.Loading(dcc.Graph(id="plane-graph", config=figures.graph_config(), className="plane-graph",
                               style={"height": "72vh", "minHeight": "480px"}),
-                    type="circle", delay_show=250, id="plane-loading"),
+                    type="circle", delay_show=LOADING_DELAY_MS, id="plane-loading"),
+        dcc.Store(id="map-shape"),            # fingerprint of the figure shown (see app.delta)
         html.Div("Hover over the map to read a point.", id="hover-readout", className="readout hover-line"),
         tracks_results(),
         point_panel(),

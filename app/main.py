@@ -22,6 +22,8 @@ def create_app() -> dash.Dash:
     )
     app.layout = layout.build_layout
     register_all(app)
+    from .compress import enable_gzip
+    enable_gzip(app.server)
     from .security import harden
     return harden(app)
 

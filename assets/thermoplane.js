@@ -51,52 +51,88 @@ window.dash_clientside = Object.assign({}, window.dash_clientside, {
       if (row === null || !isFinite(row)) { return [nu, nu]; }
       return [row, id];
     },
-    /* Sliders beside the X, Y, Z boxes. The boxes are the source of truth (the map and the URL read
-       them). sliderToBox: a slider's drag_value (while the hand moves) writes its box and marks the drag
-       in the "comp-drag" store, so the map draws a coarse preview; its value (on release) writes the box
-       and ends the drag, so the map draws at full resolution. boxToSlider: a box typed by hand moves its
+    /* Sliders beside the X, Y, Z boxes. The boxes are the source of truth (the view and the URL read
+       them). sliderToBox: while the hand moves, a slider's drag_value goes into the "comp-drag" store only
+       ({drag: true, key, value}); the map callback draws a coarse preview for that value (one request,
+       which waits for no other callback). On release, the slider's value writes its box and ends the drag,
+       so the map draws at full resolution and the URL follows. boxToSlider: a box typed by hand moves its
        slider (not while that slider's hand is moving). Two callbacks, never a loop: each writes only what
-       differs from what is there. */
-    sliderToBox: function (dx, dy, dz, sx, sy, sz, figure, bx, by, bz, drag) {
+       differs from what is there.
+       Flow control: one preview in flight at a time (a newer request for the same callback makes Dash
+       drop the answer of the one in flight, and nothing would be drawn until the hand stops). The newest
+       position waits in window.__tpDrag; mapDrawn (on each map that arrives) sends it at once. */
+    sliderToBox: function (dx, dy, dz, sx, sy, sz, bx, by, bz, drag, zauto) {
       var nu = window.dash_clientside.no_update;
+      var tp = window.dash_clientside.thermoplane;
       var keys = ["X", "Y", "Z"], boxes = [bx, by, bz], drags = [dx, dy, dz], sliders = [sx, sy, sz];
       var out = [nu, nu, nu, nu];
       var trig = (window.dash_clientside.callback_context.triggered || []).map(function (t) { return t.prop_id; });
       var dragging = !!(drag && drag.drag);
-      var same = function (a, b) { return typeof a === "number" && typeof b === "number" && Math.abs(a - b) < 1e-12; };
-      var tidy = function (v) { return Math.round(v * 1e6) / 1e6; };   /* 0.30000000000000004 -> 0.3 */
-      var now = Date.now(), k, i;
-      /* Flow control: while a preview is on its way, further drag positions wait (a newer request would
-         make the browser drop the one in flight, and nothing would be drawn until the hand stops); the
-         next preview asks for the latest position when the map arrives (or after 1.5 s without one). */
-      var busy = function () { return window.__tpPreview && now - window.__tpPreview < 1500; };
+      var st = tp.dragState();
+      var k, i;
       /* release first: the slider may report its last drag_value together with its value */
       for (i = 0; i < 3; i++) {
         k = keys[i];
         if (trig.indexOf("comp-" + k + "-slider.value") >= 0 && typeof sliders[i] === "number") {
-          window.__tpPreview = 0;
-          if (!same(tidy(sliders[i]), boxes[i])) { out[i] = tidy(sliders[i]); }
-          if (dragging || out[i] !== nu) { out[3] = {drag: false, key: k, t: now}; }
+          /* the slider following a box typed by hand (boxToSlider, clamped to 0..1) is no release: a typed
+             -0.5 stays in its box, where the map's message says what is allowed */
+          var typed = Number(boxes[i]);
+          if (!(dragging && drag.key === k) && boxes[i] !== null && boxes[i] !== "" && isFinite(typed)
+              && tp.same(Math.min(Math.max(typed, 0), 1), sliders[i])) { return out; }
+          st.latest = null; st.sent = null; st.inflight = 0;
+          if (!tp.same(tp.tidy(sliders[i]), boxes[i])) { out[i] = tp.tidy(sliders[i]); }
+          /* with "Z = 1 − X − Y" ticked, Z goes with X or Y (as the rule on the server would write it), so
+             the map is drawn once, for both */
+          var auto = (zauto || []).indexOf("auto") >= 0;
+          if (auto && out[i] !== nu && k !== "Z") {
+            var x = i === 0 ? out[0] : Number(bx), y = i === 1 ? out[1] : Number(by);
+            var z = Math.round((1 - x - y) * 1e10) / 1e10;
+            if (isFinite(z) && z >= 0 && !tp.same(z, Number(bz))) { out[2] = z; }
+          }
+          if (dragging || out[i] !== nu) { out[3] = {drag: false, key: k, t: Date.now()}; }
           return out;
         }
       }
-      var ack = trig.indexOf("plane-graph.figure") >= 0;
-      if (ack) { window.__tpPreview = 0; }
       for (i = 0; i < 3; i++) {
         k = keys[i];
-        var moved = trig.indexOf("comp-" + k + "-slider.drag_value") >= 0 || (ack && dragging && drag.key === k);
-        if (moved && typeof drags[i] === "number") {
-          /* a drag_value equal to the slider's value is the release echoed, not a hand that moves */
-          if (same(drags[i], sliders[i])) { return out; }
-          if (!same(tidy(drags[i]), boxes[i]) && !busy()) {
-            window.__tpPreview = now;
-            out[i] = tidy(drags[i]);
-            out[3] = {drag: true, key: k, t: now};
-          }
+        if (trig.indexOf("comp-" + k + "-slider.drag_value") >= 0 && typeof drags[i] === "number") {
+          /* a drag_value equal to the slider's value is the release echoed (or a box typed), not a hand */
+          if (tp.same(drags[i], sliders[i]) && !(dragging && drag.key === k)) { return out; }
+          st.latest = {key: k, value: tp.tidy(drags[i])};
+          var next = tp.nextPreview();
+          if (next) { out[3] = next; }
           return out;
         }
       }
       return out;
+    },
+    /* The drag's memory in this page: the newest position (latest), the one whose map is on its way
+       (sent) and since when (inflight, ms; 0 when none). */
+    dragState: function () {
+      if (!window.__tpDrag) { window.__tpDrag = {latest: null, sent: null, inflight: 0}; }
+      return window.__tpDrag;
+    },
+    same: function (a, b) { return typeof a === "number" && typeof b === "number" && Math.abs(a - b) < 1e-12; },
+    tidy: function (v) { return Math.round(v * 1e6) / 1e6; },       /* 0.30000000000000004 -> 0.3 */
+    /* The comp-drag value that asks for the next preview, or null: nothing new, or a preview on its way
+       (an answer lost or refused frees the way after PREVIEW_WAIT ms). */
+    PREVIEW_WAIT: 3000,
+    nextPreview: function () {
+      var tp = window.dash_clientside.thermoplane, st = tp.dragState(), now = Date.now();
+      var l = st.latest;
+      if (!l || (st.inflight && now - st.inflight < tp.PREVIEW_WAIT)) { return null; }
+      if (st.sent && st.sent.key === l.key && tp.same(st.sent.value, l.value)) { return null; }
+      st.sent = l; st.inflight = now;
+      return {drag: true, key: l.key, value: l.value, t: now};
+    },
+    /* A map (or its messages) arrived: the way is free; if the hand moved since, ask for its newest
+       position now (set_props: the drag store is an input of the map, so no callback may output it here). */
+    mapDrawn: function () {
+      var tp = window.dash_clientside.thermoplane, st = tp.dragState();
+      st.inflight = 0;
+      var next = tp.nextPreview();
+      if (next) { window.dash_clientside.set_props("comp-drag", {data: next}); }
+      return window.dash_clientside.no_update;
     },
     boxToSlider: function (bx, by, bz, sx, sy, sz, drag) {
       var nu = window.dash_clientside.no_update;

@@ -135,7 +135,9 @@ def apply_rules(trigger, X, Y, Z, zauto, rows):
         if auto:
             x, y = number(X, "X", 0.0, 1.0), number(Y, "Y", 0.0, 1.0)
             z = round(1.0 - x - y, 10)
-            return no_update, no_update, (z if z >= 0 else no_update), True, no_update, no_update
+            # Z already there (a released slider writes X and Z together): no second map for the same Z
+            same = isinstance(Z, (int, float)) and not isinstance(Z, bool) and abs(z - Z) < 1e-12
+            return no_update, no_update, (z if z >= 0 and not same else no_update), True, no_update, no_update
         return no_update, no_update, no_update, False, no_update, no_update
     except ValueError as err:
         return no_update, no_update, no_update, auto, no_update, str(err)
@@ -182,16 +184,24 @@ def register(app) -> None:
             return (no_update, no_update, no_update, no_update, no_update,
                     "Something went wrong; see the server log.", no_update)
 
-    # Sliders beside the X, Y, Z boxes, synced in the browser (no round trip while the hand moves).
+    # Sliders beside the X, Y, Z boxes, synced in the browser (no round trip while the hand moves):
+    # while it moves only the drag store changes (the map's preview reads the value from it); on release
+    # the box takes the value and the map is drawn in full (assets/thermoplane.js, sliderToBox).
     app.clientside_callback(
         "function(){ return window.dash_clientside.thermoplane.sliderToBox.apply(null, arguments); }",
         *(Output(f"comp-{k}", "value", allow_duplicate=True) for k in "XYZ"),
         Output("comp-drag", "data"),
         *(Input(f"comp-{k}-slider", "drag_value") for k in "XYZ"),
         *(Input(f"comp-{k}-slider", "value") for k in "XYZ"),
-        Input("plane-graph", "figure"),                # a map arrived: the next preview may go
         *(State(f"comp-{k}", "value") for k in "XYZ"),
-        State("comp-drag", "data"),
+        State("comp-drag", "data"), State("comp-zauto", "value"),
+        prevent_initial_call=True,
+    )
+    # A map (or the map's messages, when it could not be drawn) arrived: the next preview may go.
+    app.clientside_callback(
+        "function(){ return window.dash_clientside.thermoplane.mapDrawn.apply(null, arguments); }",
+        Output("map-drawn", "data"),
+        Input("plane-graph", "figure"), Input("map-message", "children"), Input("comp-message", "children"),
         prevent_initial_call=True,
     )
     app.clientside_callback(

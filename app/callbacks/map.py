@@ -15,7 +15,7 @@ from dash import Input, Output, State, ctx, no_update
 from ... import physics as ph
 from ...physics import impact, plane, regimes
 
-from .. import figures
+from .. import delta, figures
 from ..state import COLOR_CHOICES, CONTROLS, DEFAULT_VIEW, controls_to_view, encode_view
 from ..view import (ASINH_SCALES, ViewError, _range, composition_from_inputs, jsonable, overlay_lines, parse_view,  # noqa: F401
                     physics_options, quantity, track_overlay, view_from_store)
@@ -25,7 +25,7 @@ from .composition import number, readout
 log = logging.getLogger(__name__)
 
 __all__ = ["MESSAGES", "ViewError", "parse_view", "physics_options", "map_figure", "update_map", "is_preview",
-           "PREVIEW_RESOLUTION", "zoom_ranges",
+           "PREVIEW_RESOLUTION", "zoom_ranges", "dragged_controls",
            "composition_from_inputs", "quantity", "register"]
 
 #: Message areas, each next to the controls whose errors it shows.
@@ -217,16 +217,29 @@ def map_figure(comp: ph.Composition, view: dict = DEFAULT_VIEW, extra_traces=())
 
 #: Pixels per side of the coarse map drawn while a composition slider moves (the chosen resolution if lower).
 PREVIEW_RESOLUTION = 100
-#: The only changes a preview may answer: the drag itself and the X, Y, Z boxes it writes.
+#: The only changes a preview may answer: the drag itself and the X, Y, Z boxes.
 PREVIEW_TRIGGERS = frozenset({"comp-drag.data", "comp-X.value", "comp-Y.value", "comp-Z.value"})
 
 
 def is_preview(drag, triggered) -> bool:
     """Whether this redraw is a coarse preview: a composition slider is held (the "comp-drag" store says
-    so) and nothing but the drag and the boxes it writes changed. Any other control draws in full."""
+    so) and nothing but the drag and the boxes changed. Any other control draws in full."""
     held = isinstance(drag, dict) and bool(drag.get("drag"))
     triggered = set(triggered or ())
     return held and bool(triggered) and triggered <= PREVIEW_TRIGGERS
+
+
+def dragged_controls(drag, controls: dict) -> dict:
+    """The controls with the value of the slider in the hand (the "comp-drag" store: ``key`` X, Y or Z and
+    ``value``) in place of its box. While the hand moves, the browser writes only that store (the boxes
+    follow on release), so each preview is one request and waits for no other callback; with
+    "Z = 1 − X − Y" ticked, Z follows from X and Y as for a typed value."""
+    if not isinstance(drag, dict) or drag.get("key") not in ("X", "Y", "Z"):
+        return controls
+    value = drag.get("value")
+    if isinstance(value, bool) or not isinstance(value, (int, float)) or not 0.0 <= value <= 1.0:
+        return controls
+    return {**controls, drag["key"]: float(value)}
 
 
 def _empty_messages() -> dict:
@@ -326,9 +339,21 @@ def register(app) -> None:
     inputs["tracks"] = Input("tracks-store", "data")
     inputs["track_colour_by"] = Input("tracks-colour-by", "value")
     inputs["drag"] = Input("comp-drag", "data")
+    # the fingerprint of the figure the browser shows: a new map goes as a Patch of it when it can (app.delta)
+    outputs["shape"] = Output("map-shape", "data")
+    inputs["shape"] = State("map-shape", "data")
 
-    def _map(drag=None, **controls):
-        return update_map(preview=is_preview(drag, ctx.triggered_prop_ids), **controls)
+    def _map(drag=None, shape=None, **controls):
+        preview = is_preview(drag, ctx.triggered_prop_ids)
+        out = update_map(preview=preview, **(dragged_controls(drag, controls) if preview else controls))
+        out["shape"] = no_update
+        if preview:
+            # while the hand moves, an empty message is not sent again (each output costs the browser a
+            # pass over the page's components); the full map on release writes them all
+            out.update({m: no_update for m in MESSAGES if out[m] == ""})
+        if out["figure"] is not no_update:
+            out["figure"], out["shape"] = delta.figure_update(out["figure"], shape)
+        return out
 
     app.callback(output=outputs, inputs=inputs)(_map)
 

@@ -168,6 +168,18 @@ def test_no_physical_value_is_grey_with_a_legend_entry():
     (grey,) = [t for t in fig.data if t.meta == "unphysical"]
     mask = np.isfinite(np.asarray(grey.z, dtype=float))
     assert mask.any() and "P ≤ 0" in grey.hovertemplate
+    # the grey layer holds only the rows and columns with such pixels (one more each side), in place
+    heat = heatmap(fig)
+    j0, i0 = int(np.searchsorted(heat.x, grey.x[0])), int(np.searchsorted(heat.y, grey.y[0]))
+    assert np.array_equal(heat.x[j0:j0 + len(grey.x)], grey.x) and np.array_equal(heat.y[i0:i0 + len(grey.y)], grey.y)
+    comp = ph.Composition.from_xyz(VIEW["X"], VIEW["Y"], VIEW["Z"], metals=VIEW["metals"])
+    opts = eos.validate_options(electrons=VIEW["electrons"], ionization="full", coulomb=True, pairs=VIEW["pairs"])
+    n = VIEW["resolution"]
+    grid = plane.plane_grid(comp, VIEW["log_rho"], VIEW["log_T"], n, n, **opts)
+    bad = ~np.isfinite(np.asarray(grid.get("log_P"), dtype=float))
+    full = np.zeros_like(bad)
+    full[i0:i0 + len(grey.y), j0:j0 + len(grey.x)] = mask
+    assert np.array_equal(full, bad)
     assert any(t.name == map_cb.UNPHYSICAL_LABEL and t.showlegend for t in fig.data)
     # the default physics has a physical value everywhere: no grey region
     assert not [t for t in map_cb.update_map(**controls())["figure"].data if t.meta == "unphysical"]
@@ -450,3 +462,14 @@ def test_zoomed_ranges_recompute_the_plane():
     assert min(hm.x) == pytest.approx(-2.0) and max(hm.x) == pytest.approx(3.5)
     assert min(hm.y) == pytest.approx(5.25) and max(hm.y) == pytest.approx(7.0)
     assert encode_view({**VIEW, "log_rho": (-2.0, 3.5), "log_T": (5.25, 7.0)}) == out["view"]["query"]
+
+
+@pytest.mark.parametrize("change", [{}, {"quantity": "regime"}, {"quantity": "eta"}, {"quantity": "gamma1"},
+                                    {"quantity": "nu_process"}, {"quantity": "impact_which", "resolution": 30},
+                                    {"presentation": True}, {"colorscale": "magma"}])
+def test_map_figures_pass_plotly_validation(change):
+    """The map figure is built without plotly's validators (for speed); here they check it."""
+    import plotly.graph_objects as go
+    out = map_cb.update_map(**controls(**change))
+    assert out["figure"] is not no_update, out
+    go.Figure(out["figure"].to_plotly_json())            # raises ValueError on anything plotly.js does not know

@@ -102,3 +102,29 @@ def test_presentation_mode_enlarges_tracks():
     assert big[1].line.width > 1.5 * small[1].line.width
     assert big[-1].textfont.size > small[-1].textfont.size
     assert list(small[-1].text) == ["η = 0"] and "track's own" in small[-1].customdata[0][3]
+
+
+def _validated(fig):
+    """The figure rebuilt by plotly's validators (raises ValueError on a property plotly.js does not know)."""
+    import plotly.graph_objects as go
+    return go.Figure(fig.to_plotly_json())
+
+
+def test_figures_are_valid_plotly_although_built_unvalidated():
+    x, y, z = _plane(12)
+    codes = np.zeros((12, 12), dtype=np.int8)
+    line = [figures.Line("equality", "eq", x, 0.3 * x + 7)]
+    for fig in (figures.plane_figure(x, y, z, z_label="z", lines=line, colorscale="PuOr_r", z_range=(-1, 1),
+                                     colorbar_ticks=([0.0], ["0"]), colorbar_note="clipped", customdata=codes,
+                                     unphysical=z > 15),
+                figures.plane_figure(x, y, codes, z_label="r", categorical=[("a", "#000000"), ("b", "#ffffff")],
+                                     lines=line, presentation=True, title="t"),
+                figures.plane_figure(x, y, z, z_label="z", colorscale="Magma", hover_value=False)):
+        checked = _validated(fig)
+        heat = next(t for t in fig.data if t.type == "heatmap")
+        # the colour scale goes as the list plotly.js draws (it knows few of plotly's names, none with _r)
+        assert isinstance(heat.colorscale, (list, tuple)) and len(checked.data[0].to_plotly_json()) > 0
+    import plotly.colors as pc
+    fig = figures.plane_figure(x, y, z, z_label="z", colorscale="PuOr_r")
+    assert [list(p) for p in fig.data[0].colorscale] == [list(p) for p in pc.get_colorscale("PuOr_r")]
+    assert fig.data[0].z.dtype == np.float32

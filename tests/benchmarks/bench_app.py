@@ -1,16 +1,19 @@
 """Benchmark of the dashboard through the real server, as ratios measured in one run.
 
-Starts `thermoplane serve` on a free port (like tests/conftest.py), then times
-POSTs to /_dash-update-component from this process (requests), with the JSON
-body Dash expects built from app.callback_map:
+Starts `thermoplane serve` on a free port (like tests/conftest.py), then POSTs to /_dash-update-component from
+this process (requests, gzip accepted like a browser), with the JSON body Dash expects built from
+app.callback_map, each request carrying the fingerprint of the figure "shown" (the previous answer), so a map
+goes as a Patch where the browser would get one. Baseline: np.exp on as many doubles as the map has pixels,
+timed in this process in the same run; a time t is given as t / (time of np.exp on N doubles), i.e. np.exp
+calls per pixel of the N-pixel map.
 
-(a) a composition change on a 300 x 300 map with the full physics (every call
-    a new composition, so the plane is computed; target: median <= 300 ms,
-    p95 <= 600 ms);
-(a') the same while a slider is held (the coarse preview, at most 100 x 100);
-(b) a change of shaded quantity, and of a layer (cached physics; target <= 100 ms);
-(c) the figure payload in MB (target <= 1.5 MB);
-each also as a ratio to a baseline: the request for the page layout (/_dash-layout).
+(a) the full 300 x 300 map after a composition change (new plane + lines): median and p95
+    [target p95 <= 1000 exp per pixel];
+(a') the coarse preview while a slider is held (100 x 100), per pixel of the full map it stands for
+    [target <= 200], and per pixel of its own;
+(b) the first map after start over the median later one [target <= 2];
+(c) bytes per composition change: on the wire (gzip) and as JSON [target <= 0.5 MB], and for a whole figure;
+(d) a change of shaded quantity and of a layer (cached physics).
 
 Run: python tests/benchmarks/bench_app.py [--repeat N] [--gunicorn]
 (--gunicorn: the Dockerfile's command, so the first map comes after the preload warm-up)
@@ -27,54 +30,37 @@ from pathlib import Path
 ROOT = Path(__file__).resolve().parents[2]
 sys.path.insert(0, str(ROOT))
 
+import numpy as np                                # noqa: E402
 import requests                                   # noqa: E402
 
+from tests.app.dash_requests import map_request, response_parts   # noqa: E402
 from tests.conftest import free_port, start_process, stop_process   # noqa: E402
 
 
-def map_request(app, values: dict, changed: str, held: bool = False) -> dict:
-    """The body the browser sends for the map callback, for control values keyed like state.CONTROLS."""
-    from thermoplane.app.state import CONTROLS
-    key = next(k for k in app.callback_map if "plane-graph.figure" in k)
-    spec = app.callback_map[key]
-    outputs = []
-    for part in key.strip(".").split("..."):
-        cid, prop = part.rsplit(".", 1)
-        outputs.append({"id": cid, "property": prop})
-    by_id = {(cid, prop): name for name, (cid, prop) in CONTROLS.items()}
-    extra = {("tracks-store", "data"): None, ("tracks-colour-by", "value"): None,    # no tracks loaded
-             ("comp-drag", "data"): {"drag": held, "key": "X"}}                  # a slider held or not
-    inputs = [{"id": i["id"], "property": i["property"],
-               "value": values[by_id[(i["id"], i["property"])]] if (i["id"], i["property"]) in by_id
-               else extra[(i["id"], i["property"])]}
-              for i in spec["inputs"]]
-    changed = [changed, "comp-drag.data"] if held else [changed]
-    return {"output": key, "outputs": outputs, "inputs": inputs, "changedPropIds": changed, "state": []}
-
-
-def timed(fn, n: int) -> list[float]:
-    out = []
-    for i in range(n):
+def exp_time(n: int, repeat: int = 200) -> float:
+    """Median seconds of np.exp on n doubles (the unit of every ratio)."""
+    x = np.random.default_rng(1).uniform(-5.0, 5.0, n)
+    out = np.empty_like(x)
+    times = []
+    for _ in range(repeat):
         t0 = time.perf_counter()
-        fn(i)
-        out.append(time.perf_counter() - t0)
-    return out
+        np.exp(x, out=out)
+        times.append(time.perf_counter() - t0)
+    return statistics.median(times)
 
 
-def summary(name: str, times: list[float], base: float, target: str) -> None:
+def p50_p95(times):
     times = sorted(times)
-    med = statistics.median(times)
-    p95 = times[min(len(times) - 1, int(round(0.95 * (len(times) - 1))))]
-    print(f"{name:<42} median {1e3 * med:8.1f} ms  p95 {1e3 * p95:8.1f} ms  "
-          f"= {med / base:7.1f} x baseline   [{target}]")
+    return statistics.median(times), times[min(len(times) - 1, int(round(0.95 * (len(times) - 1))))]
 
 
 def main() -> None:
     ap = argparse.ArgumentParser()
-    ap.add_argument("--repeat", type=int, default=10)
+    ap.add_argument("--repeat", type=int, default=12)
     ap.add_argument("--gunicorn", action="store_true",
                     help="serve with the Dockerfile's gunicorn command (preload, two workers) instead")
     args = ap.parse_args()
+    from thermoplane.app.callbacks.map import PREVIEW_RESOLUTION
     from thermoplane.app.main import create_app
     from thermoplane.app.state import DEFAULT_VIEW, view_to_controls
     app = create_app()
@@ -88,44 +74,87 @@ def main() -> None:
         cmd = [sys.executable, "-m", "thermoplane.app.cli", "serve", "--port", str(port)]
     print("server:", " ".join(cmd))
     proc = start_process(cmd, url, "bench_app.log")
+    n = int(DEFAULT_VIEW["resolution"])
     try:
         s = requests.Session()
-        post = lambda body: s.post(url + "_dash-update-component", json=body, timeout=600)
-        base_times = timed(lambda i: s.get(url + "_dash-layout", timeout=60), max(args.repeat, 10))
-        base = statistics.median(base_times)
-        print(f"baseline: GET /_dash-layout median {1e3 * base:.2f} ms")
+        shape = [None]                                # the fingerprint of the figure "shown"
+
+        def post(body):
+            r = s.post(url + "_dash-update-component", json=body, timeout=600,
+                       headers={"Accept-Encoding": "gzip"})
+            r.raise_for_status()
+            parts = response_parts(r.json())
+            if parts.get("map-shape.data"):
+                shape[0] = parts["map-shape.data"]
+            return r
+
         controls = view_to_controls(DEFAULT_VIEW)
         print("physics options:", {k: DEFAULT_VIEW[k] for k in ("electrons", "ionization", "coulomb", "pairs")},
-              f"resolution {DEFAULT_VIEW['resolution']}")
+              f"resolution {n} x {n}, preview {PREVIEW_RESOLUTION} x {PREVIEW_RESOLUTION}")
         t0 = time.perf_counter()
         r = post(map_request(app, controls, "comp-X.value"))
-        r.raise_for_status()
         first = time.perf_counter() - t0
-        print(f"first map after start (cold caches: plane, boundaries, ignition, mass lines): {first:.2f} s")
-        print(f"figure payload: {len(r.content) / 1e6:.3f} MB  [target <= 1.5 MB]")
+        whole = (int(r.headers.get("Content-Length", len(r.content))), len(r.content))
+        print(f"first map after start: {first:.2f} s")
 
         def composition(i):
-            X = 0.70 - 0.001 * (i + 1)                    # a new composition every time
-            post(map_request(app, {**controls, "X": round(X, 6), "Y": round(0.98 - X, 6)}, "comp-X.value"))
-        later = timed(composition, args.repeat)
-        summary("(a) composition change (new plane + lines)", later, base, "<= 300 ms median, <= 600 ms p95")
-        print(f"first map / later map (median): {first / statistics.median(later):.2f}  [target <= 2]")
+            X = round(0.70 - 0.003 * (i + 1), 6)        # a new composition every time
+            body = map_request(app, {**controls, "X": X, "Y": round(0.98 - X, 6)}, "comp-X.value", shape=shape[0])
+            t0 = time.perf_counter()
+            r = post(body)
+            return time.perf_counter() - t0, r
+
+        later, sizes = [], []
+        for i in range(args.repeat):
+            t, r = composition(i)
+            later.append(t)
+            sizes.append((int(r.headers.get("Content-Length", len(r.content))), len(r.content),
+                          "operations" in r.json()["response"]["plane-graph"]["figure"]))
 
         def preview(i):
-            X = 0.60 - 0.001 * (i + 1)                    # a new composition every time, slider held
-            post(map_request(app, {**controls, "X": round(X, 6), "Y": round(0.98 - X, 6)}, "comp-X.value",
-                             held=True))
-        summary("(a') coarse preview while a slider moves", timed(preview, args.repeat), base,
-                "at most 100 x 100 pixels")
+            X = round(0.60 - 0.003 * (i + 1), 6)        # a new composition every time, slider held
+            body = map_request(app, {**controls, "Y": 0.28, "Z": 0.02, "zauto": ["auto"]}, "comp-drag.data",
+                               held=True, drag_value=X, shape=shape[0])
+            t0 = time.perf_counter()
+            post(body)
+            return time.perf_counter() - t0
+
+        previews = [preview(i) for i in range(args.repeat)]
+        post(map_request(app, controls, "comp-X.value", shape=shape[0]))      # back to a full map
 
         quantities = ["eta", "gamma1", "log_prad_pgas", "regime"]
-        summary("(b) shaded quantity change", timed(
-            lambda i: post(map_request(app, {**controls, "quantity": quantities[i % 4]}, "map-quantity.value")),
-            args.repeat), base, "<= 100 ms")
+        qtimes = []
+        for i in range(args.repeat):
+            t0 = time.perf_counter()
+            post(map_request(app, {**controls, "quantity": quantities[i % 4]}, "map-quantity.value", shape=shape[0]))
+            qtimes.append(time.perf_counter() - t0)
         layers = [list(DEFAULT_VIEW["layers"]), ["equality"]]
-        summary("(b) layer change", timed(
-            lambda i: post(map_request(app, {**controls, "layers": layers[i % 2]}, "map-layers.value")),
-            args.repeat), base, "<= 100 ms")
+        ltimes = []
+        for i in range(args.repeat):
+            t0 = time.perf_counter()
+            post(map_request(app, {**controls, "layers": layers[i % 2]}, "map-layers.value", shape=shape[0]))
+            ltimes.append(time.perf_counter() - t0)
+
+        e_full, e_prev = exp_time(n * n), exp_time(PREVIEW_RESOLUTION ** 2)
+        print(f"baseline: np.exp on {n * n} doubles {1e3 * e_full:.3f} ms "
+              f"(on {PREVIEW_RESOLUTION ** 2}: {1e3 * e_prev:.3f} ms), median of 200, same run")
+        med, p95 = p50_p95(later)
+        print(f"(a) full map after a composition change: median {1e3 * med:.0f} ms = {med / e_full:.0f} exp/pixel, "
+              f"p95 {1e3 * p95:.0f} ms = {p95 / e_full:.0f} exp/pixel   [target p95 <= 1000]")
+        pm, pp = p50_p95(previews)
+        print(f"(a') coarse preview: median {1e3 * pm:.0f} ms = {pm / e_full:.0f} exp per full-map pixel "
+              f"(p95 {pp / e_full:.0f})   [target <= 200]; = {pm / e_prev:.0f} exp per preview pixel")
+        print(f"(b) first map / later map (median): {first / med:.2f}   [target <= 2]")
+        wire = [w for w, _, p in sizes if p]
+        js = [j for _, j, p in sizes if p]
+        if wire:
+            print(f"(c) bytes per composition change (a Patch, {len(wire)} of {len(sizes)}): "
+                  f"{statistics.median(wire) / 1e6:.3f} MB sent, max {max(wire) / 1e6:.3f} MB "
+                  f"({statistics.median(js) / 1e6:.3f} MB of JSON before gzip)   [target <= 0.5 MB]")
+        print(f"    a whole figure (the first map): {whole[0] / 1e6:.3f} MB sent ({whole[1] / 1e6:.3f} MB of JSON)")
+        for name, times in (("(d) shaded quantity change", qtimes), ("(d) layer change", ltimes)):
+            m, p = p50_p95(times)
+            print(f"{name}: median {1e3 * m:.0f} ms = {m / e_full:.0f} exp/pixel, p95 {1e3 * p:.0f} ms")
     finally:
         stop_process(proc)
 

@@ -47,6 +47,7 @@ def _full_map(pg, n=300, timeout=60000):
 def test_dragging_X_redraws_while_the_hand_moves(server_url, page):
     page.goto(server_url)
     _full_map(page)
+    screenshot(page, "drag_before")
     page.check("#comp-zauto input")                      # Z follows X and Y, so every X keeps the sum 1
     page.wait_for_function("() => document.querySelector('#comp-Z').disabled")
     page.evaluate(COUNT_REDRAWS)
@@ -127,4 +128,61 @@ def test_zooming_into_a_box_recomputes_the_plane(server_url, page):
                                                   {'xaxis.range[0]': -30, 'xaxis.range[1]': 5})""")
     page.wait_for_selector("#map-zoom-message:has-text('must be between')")
     page.wait_for_function("() => Number(document.querySelector('#map-rho-lo').value) < -9")
+    assert page.console_errors == []
+
+
+def _graph_png(pg) -> bytes:
+    pg.mouse.move(5, 5)                                   # no hover box over the map
+    pg.wait_for_timeout(300)
+    return pg.locator("#plane-graph .js-plotly-plot").screenshot()
+
+
+#: JS: the share of pixels that differ by more than 8 in a colour channel between two PNGs of one size
+#: (decoded by the browser), or null when the sizes differ.
+PNG_DIFF = """async ([a, b]) => {
+  const load = async (b64) => { const r = await fetch('data:image/png;base64,' + b64);
+                                return await createImageBitmap(await r.blob()); };
+  const [ia, ib] = [await load(a), await load(b)];
+  if (ia.width !== ib.width || ia.height !== ib.height) return null;
+  const px = (im) => { const c = new OffscreenCanvas(im.width, im.height); const g = c.getContext('2d');
+                       g.drawImage(im, 0, 0); return g.getImageData(0, 0, im.width, im.height).data; };
+  const [da, db] = [px(ia), px(ib)];
+  let n = 0;
+  for (let i = 0; i < da.length; i += 4) {
+    if (Math.abs(da[i] - db[i]) > 8 || Math.abs(da[i + 1] - db[i + 1]) > 8 || Math.abs(da[i + 2] - db[i + 2]) > 8) n++;
+  }
+  return n / (da.length / 4);
+}"""
+
+
+def test_a_patched_map_looks_like_the_same_map_sent_whole(server_url, page, browser):
+    """A composition change arrives as a Patch of the map shown; the page then shows what a fresh page with
+    that composition shows (the figure sent whole)."""
+    import base64
+    page.goto(server_url)
+    _full_map(page)
+    patches = []
+    page.on("response", lambda r: patches.append(b"__dash_patch_update" in r.body())
+            if "_dash-update-component" in r.url and b"plane-graph" in (r.request.post_data_buffer or b"")[:200]
+            else None)
+    page.fill("#comp-X", "0.6")
+    page.fill("#comp-Y", "0.38")
+    page.press("#comp-Y", "Enter")
+    page.wait_for_function("() => new URLSearchParams(window.location.search).get('Y') === '0.38'", timeout=60000)
+    page.wait_for_timeout(1000)
+    assert patches and patches[-1], "the new map did not come as a Patch"
+    patched = _graph_png(page)
+    screenshot(page, "patched_composition")
+    query = page.evaluate("window.location.search")
+    fresh = browser.new_context(viewport={"width": 1400, "height": 900}).new_page()
+    fresh.goto(server_url + query)
+    _full_map(fresh)
+    fresh.wait_for_timeout(1000)
+    whole = _graph_png(fresh)
+    screenshot(fresh, "whole_composition")
+    fresh.context.close()
+    share = page.evaluate(PNG_DIFF, [base64.b64encode(patched).decode(), base64.b64encode(whole).decode()])
+    assert share is not None, "the two maps differ in size"
+    print(f"\npatched vs whole: {share * 100:.3f} % of the map's pixels differ")
+    assert share < 1e-3
     assert page.console_errors == []

@@ -1,0 +1,119 @@
+"""Send only what changed: a new map figure as a Dash ``Patch`` of the one the browser shows.
+
+The browser keeps, next to the figure, its *fingerprint* (a small ``dcc.Store``, written in the same
+response as the figure, so the two never disagree): a hash of the figure's structure (how many traces,
+their types and names, which properties each has, which layout properties there are) and one short hash
+per property of each trace and of the layout. :func:`figure_update` compares a new figure with that
+fingerprint:
+
+- same structure: a ``Patch`` that assigns only the properties whose hash differs (after a composition
+  change: the shaded values, the regime codes, the lines' coordinates, the label positions; the axes,
+  the styles, the hover texts and the layout stay in the browser);
+- anything else (first map, another quantity or colour scale, a line switched on, a track added): the
+  whole figure.
+
+Arrays travel as plotly.js typed arrays (``{"dtype": "f4", "bdata": base64}``): the map's values are
+float32 already (:func:`app.figures.plane_figure`); a ``Patch`` does not encode numpy arrays by itself,
+so :func:`encode` does it for both.
+"""
+
+from __future__ import annotations
+
+import hashlib
+import json
+
+import numpy as np
+from dash import Patch
+
+__all__ = ["encode", "fingerprint", "figure_update"]
+
+_DIGEST = 6                       # bytes per hash (12 hex digits): a collision needs ~1e7 changes of one property
+
+
+def encode(value):
+    """``value`` with every numeric numpy array as a plotly.js typed-array spec (object arrays as lists)."""
+    if isinstance(value, np.ndarray):
+        if value.dtype.kind in "fiub" and value.size:
+            from _plotly_utils.utils import to_typed_array_spec
+            return to_typed_array_spec(value)
+        return [encode(v) for v in value.tolist()]
+    if isinstance(value, dict):
+        return {k: encode(v) for k, v in value.items()}
+    if isinstance(value, (list, tuple)):
+        return [encode(v) for v in value]
+    if isinstance(value, np.generic):
+        return value.item()
+    return value
+
+
+def _feed(h, value) -> None:
+    if isinstance(value, np.ndarray):
+        if value.dtype.kind == "O":
+            _feed(h, value.tolist())
+            return
+        h.update(f"A{value.dtype.str}{value.shape}".encode())
+        h.update(np.ascontiguousarray(value).tobytes())
+    elif isinstance(value, dict):
+        h.update(b"{")
+        for k in sorted(value):
+            h.update(str(k).encode() + b":")
+            _feed(h, value[k])
+        h.update(b"}")
+    elif isinstance(value, (list, tuple)):
+        h.update(b"[")
+        for v in value:
+            _feed(h, v)
+            h.update(b",")
+        h.update(b"]")
+    else:
+        h.update(repr(value).encode())
+
+
+def _hash(value) -> str:
+    h = hashlib.blake2b(digest_size=_DIGEST)
+    _feed(h, value)
+    return h.hexdigest()
+
+
+def _parts(fig: dict):
+    """(path, value) of every property that is replaced as a whole: each key of each trace and of the layout."""
+    for i, trace in enumerate(fig.get("data") or ()):
+        for k in sorted(trace):
+            yield ("data", i, k), trace[k]
+    layout = fig.get("layout") or {}
+    for k in sorted(layout):
+        yield ("layout", k), layout[k]
+
+
+def _structure(fig: dict) -> str:
+    shape = [[t.get("type"), t.get("meta"), t.get("name"), sorted(t)] for t in fig.get("data") or ()]
+    shape.append(sorted(fig.get("layout") or {}))
+    return _hash(json.dumps(shape, default=str))
+
+
+def fingerprint(fig: dict) -> dict:
+    """The structure hash and the per-property hashes of a figure dict (what the browser store keeps)."""
+    return {"shape": _structure(fig), "parts": [_hash(v) for _, v in _parts(fig)]}
+
+
+def figure_update(fig, shown=None):
+    """(what to send, fingerprint to store) for a new figure, given the fingerprint of the one shown.
+
+    ``fig`` is a plotly figure or a figure dict; ``shown`` the browser's fingerprint (None or anything
+    malformed: the whole figure goes). What is sent is a ``Patch`` when the structure is the same,
+    else the whole figure as a dict with typed arrays.
+    """
+    d = fig.to_plotly_json() if hasattr(fig, "to_plotly_json") else dict(fig)
+    d = {"data": list(d.get("data") or ()), "layout": dict(d.get("layout") or {})}
+    new = fingerprint(d)
+    old = shown.get("parts") if isinstance(shown, dict) and shown.get("shape") == new["shape"] else None
+    if not isinstance(old, list) or len(old) != len(new["parts"]):
+        return encode(d), new
+    patch = Patch()
+    for (path, value), was, now in zip(_parts(d), old, new["parts"]):
+        if was != now:
+            target = patch
+            for key in path[:-1]:
+                target = target[key]
+            target[path[-1]] = encode(value)
+    return patch, new

@@ -1,0 +1,105 @@
+"""Send only what changed: a new map goes as a Patch of the one shown, and the browser ends up with the same
+figure as if the whole of it had been sent."""
+
+from __future__ import annotations
+
+import json
+import sys
+
+import numpy as np
+import pytest
+from dash import Patch
+from dash._utils import to_json
+
+from thermoplane.app import delta
+from thermoplane.app.callbacks import map as map_cb
+from tests.app.dash_requests import apply_patch, map_request, response_parts
+from tests.app.test_callbacks import controls
+
+
+def _sent(value) -> dict:
+    """What the browser receives (the JSON of a figure dict or of a Patch)."""
+    return json.loads(to_json(value))
+
+
+def _figure(**change):
+    out = map_cb.update_map(**controls(**change))
+    assert out["figure"] is not map_cb.no_update, out
+    return out["figure"]
+
+
+def test_a_composition_change_is_a_patch_that_rebuilds_the_new_figure():
+    old, shape = delta.figure_update(_figure(X=0.70, Y=0.28))
+    assert isinstance(old, dict) and shape["shape"] and len(shape["parts"]) > 20
+    new_fig = _figure(X=0.60, Y=0.38)
+    patch, shape2 = delta.figure_update(new_fig, shape)
+    assert isinstance(patch, Patch)
+    whole, _ = delta.figure_update(new_fig)
+    assert apply_patch(_sent(old), _sent(patch)) == _sent(whole)
+    assigned = {tuple(op["location"]) for op in _sent(patch)["operations"]}
+    assert ("data", 0, "z") in assigned and ("data", 0, "customdata") in assigned      # the values changed
+    assert ("data", 0, "x") not in assigned and ("layout", "xaxis") not in assigned    # the axes did not
+    assert shape2 == delta.fingerprint({"data": whole["data"], "layout": whole["layout"]})
+    # the values go as float32 typed arrays
+    z = _sent(patch)["operations"][[op["location"] for op in _sent(patch)["operations"]].index(["data", 0, "z"])]
+    assert z["params"]["value"]["dtype"] == "f4"
+
+
+def test_the_same_figure_again_sends_nothing_and_a_new_structure_sends_the_whole():
+    fig = _figure()
+    _, shape = delta.figure_update(fig)
+    again, _ = delta.figure_update(fig, shape)
+    assert isinstance(again, Patch) and _sent(again)["operations"] == []
+    fewer, _ = delta.figure_update(_figure(layers=["equality"]), shape)    # lines switched off: other traces
+    assert isinstance(fewer, dict) and len(fewer["data"]) < len(_sent(delta.figure_update(fig)[0])["data"])
+    for bad in ({"shape": shape["shape"], "parts": shape["parts"][:-1]}, {"shape": 1}, "junk", 7):
+        assert isinstance(delta.figure_update(fig, bad)[0], dict)
+
+
+def test_encode_turns_numeric_arrays_into_typed_arrays():
+    out = delta.encode({"a": np.arange(3, dtype=np.float32), "b": [np.int8(2)], "c": np.array(["x"], dtype=object)})
+    assert out["a"]["dtype"] == "f4" and out["b"] == [2] and out["c"] == ["x"]
+    assert np.array_equal(np.frombuffer(__import__("base64").b64decode(out["a"]["bdata"]), np.float32), [0, 1, 2])
+
+
+@pytest.fixture(scope="module")
+def served():
+    """`thermoplane serve` on a free port, with the app object that describes its callbacks."""
+    from tests.conftest import ROOT, free_port, start_process, stop_process
+    from thermoplane.app.main import create_app
+    (ROOT / ".pytest_cache").mkdir(exist_ok=True)
+    port = free_port()
+    url = f"http://127.0.0.1:{port}/"
+    proc = start_process([sys.executable, "-m", "thermoplane.app.cli", "serve", "--port", str(port)], url,
+                         "serve_delta.log")
+    yield url, create_app()
+    stop_process(proc)
+
+
+def test_a_composition_change_through_the_server_sends_at_most_half_a_megabyte(served):
+    """The default 300 x 300 map with the full physics, as the browser asks for it (gzip accepted)."""
+    import requests
+    from thermoplane.app.state import DEFAULT_VIEW, view_to_controls
+    url, app = served
+    c = view_to_controls(DEFAULT_VIEW)
+    s = requests.Session()
+    post = lambda body: s.post(url + "_dash-update-component", json=body, timeout=600,
+                               headers={"Accept-Encoding": "gzip"})
+    first = post(map_request(app, c, "comp-X.value"))
+    first.raise_for_status()
+    parts = response_parts(first.json())
+    shown, shape = parts["plane-graph.figure"], parts["map-shape.data"]
+    assert "operations" not in shown                                         # the first map is whole
+    changed = {**c, "X": 0.65, "Y": 0.33}
+    r = post(map_request(app, changed, "comp-X.value", shape=shape))
+    r.raise_for_status()
+    wire = int(r.headers["Content-Length"])
+    print(f"\ncomposition change: {wire / 1e6:.3f} MB sent ({len(r.content) / 1e6:.3f} MB of JSON; "
+          f"the first map {int(first.headers['Content-Length']) / 1e6:.3f} MB)")
+    assert r.headers.get("Content-Encoding") == "gzip"
+    assert wire <= 0.5e6
+    patch = response_parts(r.json())["plane-graph.figure"]
+    assert patch.get("__dash_patch_update") and patch["operations"]
+    # what the browser shows after the patch is the new composition's whole figure
+    whole = response_parts(post(map_request(app, changed, "comp-X.value")).json())["plane-graph.figure"]
+    assert apply_patch(shown, patch) == whole
