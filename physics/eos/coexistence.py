@@ -41,7 +41,7 @@ from ..composition import Composition
 __all__ = ["LOG_RHO_SCAN", "T_MAX", "binodal", "apply_coexistence"]
 
 #: the densities scanned for loops, log10 g cm^-3 (the pressure-ionization band of H, He and the C/O K shells)
-LOG_RHO_SCAN = np.arange(-2.0, 5.0 + 1e-9, 0.01)
+LOG_RHO_SCAN = np.arange(-1.5, 4.5 + 1e-9, 0.01)
 #: no isotherm above this temperature is scanned (K): the loops close well below it (measured: H near
 #: 9e4 K, the solar-like mix's He loop near 2e5 K, C/O loops at 1e5-3e5 K and none at 1e6, 2e6, 4e6 K)
 T_MAX = 1.0e6
@@ -121,7 +121,7 @@ def binodal(T, comp: Composition, **options):
 
     The isotherms are scanned on a ladder in log10 T (NODE_STEP); at any T between two nodes each tie line
     present at both starts from their interpolation (from the one node that has it, near the critical point
-    or the low-temperature gap) and is converged at T itself. Both the nodes and the
+    or the low-temperature gap) and is converged at T itself; where that fails, T's isotherm is scanned. Both the nodes and the
     converged temperatures are cached per composition and options, so a second map, a zoom or a boundary
     refinement costs a few equation-of-state calls per new temperature.
     """
@@ -161,6 +161,11 @@ def binodal(T, comp: Composition, **options):
             res[0, r[good], c[good]] = ya[good]
             res[1, r[good], c[good]] = yb[good]
             res[2, r[good], c[good]] = Pc[good]
+            # where a neighbour's tie line did not converge here (near the ends of the loops' range), the
+            # isotherm gets its own scan, as a node does
+            again = np.unique(r[~good])
+            if again.size:
+                res[:, again, :] = _construct(T[sel][idx][again], comp, opts)
         return res
 
     off = np.flatnonzero(~on_node)
@@ -244,8 +249,13 @@ def _construct(T, comp, opts):
 
 
 def _polish(xa, xb, Tl, comp, opts):
-    """Newton iterations on the coexistence conditions from log10 rho_a, log10 rho_b; all loops at once."""
+    """Newton iterations on the coexistence conditions from log10 rho_a, log10 rho_b; all loops at once.
+
+    A step that lands where the solver finds no root (the neutral branch ends near its packing limit just
+    below the low-temperature end of the loops) is taken back and halved."""
     y = np.log(10.0) * np.column_stack([xa, xb])         # ln rho_a, ln rho_b
+    prev = y.copy()
+    last = np.zeros_like(y)                               # the step that led from prev to y
     done = np.zeros(Tl.size, dtype=bool)
     P_out = np.full(Tl.size, np.nan)
     for _ in range(_NEWTON):
@@ -271,9 +281,18 @@ def _polish(xa, xb, Tl, comp, opts):
         # converged: the residuals at rounding, or a stalled step with residuals already small
         small = (np.abs(R1) < 1e-11) & (np.abs(R2) < 1e-10)
         conv = ((np.abs(R1) < 1e-13) & (np.abs(R2) < 1e-12)) | (small & (np.maximum(np.abs(d0), np.abs(d1)) < 1e-13))
-        lost = ~np.isfinite(d0 + d1)
         P_out[act[conv]] = 0.5 * (Pa + Pb)[conv]
-        y[act] -= np.where((conv | lost)[:, None], 0.0, np.clip(np.column_stack([d0, d1]), -0.05, 0.05))
+        bad = ~np.isfinite(d0 + d1)
+        # no root at the trial point: back to the last good point with half the step
+        back = act[bad]
+        last[back] *= 0.5
+        y[back] = prev[back] + last[back]
+        lost = bad & (np.max(np.abs(last[act]), axis=1) < 1e-8)
+        step = np.clip(np.column_stack([d0, d1]), -0.05, 0.05)
+        go = act[~bad & ~conv]
+        prev[go] = y[go]
+        last[go] = -step[~bad & ~conv]
+        y[go] = y[go] + last[go]
         done[act[conv | lost]] = True
     good = np.isfinite(P_out) & (y[:, 0] < y[:, 1] - 1e-6)
     return np.exp(y[:, 0]), np.exp(y[:, 1]), P_out, good
