@@ -44,6 +44,36 @@ def test_entropy_positive_on_the_default_plane(name):
     assert np.sum((s.S <= 0) & ~ionized) < 0.005 * s.S.size
 
 
+def _screening_heat_capacity(s, comp):
+    """c_V of the electron screening term per gram (physics.eos.screening, summed over the species by number
+    fraction): the polarization of the degenerate electrons, part of the c_V_ion readout, negative and
+    linear in T where the electrons are degenerate (their own c_V, also linear, outweighs it)."""
+    from thermoplane.physics.eos import screening as scr
+    N = comp.X / (comp.A * const.m_u)
+    n_e = s.rho * np.sum(N * comp.Z)
+    out = np.zeros_like(s.rho)
+    for Ni, Zi, Ai in zip(N, comp.Z, comp.A):
+        f = scr.screening_free_energy(n_e, s.T, Zi, Ai)
+        out += -Ni * const.k_B * (f[2] + f[5])
+    return out
+
+
+@pytest.mark.parametrize("name", list(COMPOSITIONS))
+def test_ion_heat_capacity_non_negative_on_the_plane(name):
+    # the ions' own c_V (ideal + liquid or lattice) >= 0 everywhere on the default plane, up to the rounding
+    # of the excess's jet (eps of its Madelung ~ Gamma and zero-point ~ T_p/T terms, per ion). Before the
+    # liquid's excess froze below T_p / 3 (physics.eos.ion_liquid): -0.4 k per ion for H-rich matter at
+    # 10^8.9 g/cm^3, 10^7.8 K (measured, tests/benchmarks/scan_dense_plane.py)
+    comp = COMPOSITIONS[name]
+    s = _plane(comp)
+    full = np.sum(comp.X * comp.Z / comp.A) / np.sum(comp.X / comp.A)
+    ionized = s.mean_Z >= full * (1 - 1e-6)
+    k_ion = const.k_B * float(np.sum(comp.X / (comp.A * const.m_u)))
+    floor = 16 * np.finfo(float).eps * k_ion * (s.Gamma + s.T_p / s.T + 20.0)
+    own = s.c_V_ion - _screening_heat_capacity(s, comp)
+    assert np.all(own[ionized] >= -floor[ionized]), name
+
+
 @pytest.mark.parametrize("name", list(COMPOSITIONS))
 def test_ion_entropy_positive_and_ion_heat_capacity_non_negative_in_the_crystal(name):
     comp = COMPOSITIONS[name]
