@@ -150,13 +150,14 @@ _SOMM_B = 7.0 * np.pi ** 4 / 360.0
 ETA_SOMMERFELD = 300.0
 
 
-def degenerate_free_energy(n):
+def degenerate_free_energy(n, value=True):
     """The T = 0 free energy of the electron gas (per volume, rest mass excluded) and its u-derivatives.
 
     f_0 = (m_e c^2 / (pi^2 lambda_C^3)) int_0^x y^2 (sqrt(1 + y^2) - 1) dy, the kinetic energy density of
     the filled Fermi sphere (Chandrasekhar 1939), x = p_F / (m_e c); f_0u = n mu_0 with the kinetic Fermi
     energy mu_0 = m_e c^2 x^2 / (1 + eps), eps = sqrt(1 + x^2); f_0uu = n (mu_0 + n dmu_0/dn),
-    n dmu_0/dn = m_e c^2 x^2 / (3 eps); u = ln n, n in cm^-3. Returns (f_0, f_0u, f_0uu), erg cm^-3.
+    n dmu_0/dn = m_e c^2 x^2 / (3 eps); u = ln n, n in cm^-3. Returns (f_0, f_0u, f_0uu), erg cm^-3
+    (f_0 None if not ``value``: eta and deta/dn need only the derivatives).
 
     The pair-free table holds the free energy minus f_0 (subtracted at the nodes, added back at evaluation):
     in degenerate matter f is f_0 plus a thermal part smaller by ~(kT/mu_0)^2, and a table of the whole f
@@ -166,6 +167,10 @@ def degenerate_free_energy(n):
     x = _X0 * n ** (1.0 / 3.0)
     x2 = x * x
     eps = np.sqrt(1.0 + x2)
+    mu0 = _MC2 * x2 / (1.0 + eps)
+    derivs = n * mu0, n * (mu0 + _MC2 * x2 / (3.0 * eps))
+    if not value:
+        return (None,) + derivs
     small = x < _X_SERIES
     xs = np.where(small, x, 0.0)
     y = xs * xs
@@ -175,9 +180,7 @@ def degenerate_free_energy(n):
     ser = ser * y * y * xs
     xl = np.where(small, 1.0, x)
     closed = 0.125 * (xl * (2.0 * xl * xl + 1.0) * np.sqrt(1.0 + xl * xl) - np.arcsinh(xl)) - xl * xl * xl / 3.0
-    mu0 = _MC2 * x2 / (1.0 + eps)
-    f0 = _E_UNIT * np.where(small, ser, closed)
-    return f0, n * mu0, n * (mu0 + _MC2 * x2 / (3.0 * eps))
+    return (_E_UNIT * np.where(small, ser, closed),) + derivs
 
 
 def _ujet_mul(a, b):
@@ -525,7 +528,7 @@ def _eta_light(tab, n, T):
     hu = tab.hu
     Gu, Guu = R[0] / hu, R[1] / (hu * hu)
     if tab.split:
-        _, f0u, f0uu = degenerate_free_energy(n)
+        _, f0u, f0uu = degenerate_free_energy(n, value=False)
         Gu, Guu = Gu + f0u, Guu + f0uu
     kT = _K * T
     c0 = _rest_shift(v)[0] if tab.pairs else 0.0
