@@ -73,16 +73,9 @@ def test_ion_heat_capacity_non_negative_on_the_plane(name):
     k_ion = const.k_B * float(np.sum(comp.X / (comp.A * const.m_u)))
     floor = 16 * np.finfo(float).eps * k_ion * (s.Gamma + s.T_p / s.T + 20.0)
     own = s.c_V_ion - _screening_heat_capacity(s, comp)
-    bad = ionized & (own < -floor)
-    if name != "H-rich":
-        assert not bad.any(), name
-        return
-    # KNOWN LIMIT (README): weakly coupled quantum hydrogen, Gamma < 10 and T_p/T > 2.5, log rho > 8,
-    # where the liquid's quantum correction (the harmonic lattice's) removes more c_V than the weakly
-    # coupled liquid has: down to -1.2 k per ion. Measured: 23 of 10011 points. The test fails if it spreads.
-    assert bad.sum() <= 23
-    assert np.all(s.Gamma[bad] < 10) and np.all(s.T[bad] < 0.4 * s.T_p[bad]) and np.all(s.rho[bad] > 1e8)
-    assert np.all(own[bad] > -1.3 * k_ion)
+    # before the liquid's frozen form at weak coupling (physics.eos.ion_liquid): 23 points of the H-rich plane
+    # below -floor, down to -1.2 k per ion near 10^8.7 g/cm^3, 10^7.7 K (measured)
+    assert np.all(own[ionized] >= -floor[ionized]), name
 
 
 @pytest.mark.parametrize("name", list(COMPOSITIONS))

@@ -196,6 +196,15 @@ def _liquid_at(G, eta, Z=1.0, A=1.0):
     return np.array(liq.liquid_ion(n, T, Z, A))
 
 
+def test_quantum_liquid_heat_capacity_non_negative():
+    # ion c_V per ion / k = 3/2 (ideal) - (f_T + f_TT) >= 0 for Gamma <= 300 and eta / Gamma <= 1.6 (hydrogen
+    # up to ~1.3e10 g/cm^3; 1.55 at the default plane's 1e10 g/cm^3); the faded form alone reached -2 k
+    cv = [1.5 - (f[2] + f[5]) for f in (_liquid_at(10**lg, r * 10**lg)
+                                        for lg in np.linspace(-2, math.log10(300), 60)
+                                        for r in np.logspace(-4, math.log10(1.6), 30))]
+    assert min(cv) >= -1e-9
+
+
 def test_quantum_liquid_limits():
     # Wigner-Kirkwood: f_liq - f_OCP -> eta^2 / 24 (Hansen & Vieillefosse 1975; exact for the OCP), with the
     # next order ~eta^4
