@@ -129,6 +129,124 @@ def _node_quantities(n, T, pairs):
     return s, Fu, Fuu, Fuv
 
 
+# ----------------------------------------------------------------------------- degenerate split
+
+#: electron Compton wavelength hbar / (m_e c), cm
+_LAMBDA_C = const.hbar / (const.m_e * const.c)
+#: x = p_F / (m_e c) = _X0 n^(1/3): p_F = hbar (3 pi^2 n)^(1/3)
+_X0 = (3.0 * np.pi ** 2) ** (1.0 / 3.0) * _LAMBDA_C
+#: m_e c^2 / (pi^2 lambda_C^3): energy density unit of the T = 0 gas, erg cm^-3
+_E_UNIT = _MC2 / (np.pi ** 2 * _LAMBDA_C ** 3)
+#: below this x the series replaces the closed form of the T = 0 energy (which cancels as x^5 / x^3)
+_X_SERIES = 0.3
+#: series of int_0^x y^2 (sqrt(1 + y^2) - 1) dy = sum_k binom(1/2, k) x^(2k+3) / (2k+3), k = 1..20
+#: (the terms fall by x^2 <= 0.09: the last is below 1e-20 of the first)
+_SERIES = tuple(float(np.prod([0.5 - j for j in range(k)]) / np.prod(np.arange(1, k + 1)) / (2 * k + 3))
+                for k in range(1, 21))
+#: Sommerfeld coefficients a = pi^2/6 of (kT)^2 and b = 7 pi^4/360 of (kT)^4
+_SOMM_A = np.pi ** 2 / 6.0
+_SOMM_B = 7.0 * np.pi ** 4 / 360.0
+#: above this eta the node data of the pair-free table are the Sommerfeld expansion (_sommerfeld_nodes)
+ETA_SOMMERFELD = 300.0
+
+
+def degenerate_free_energy(n, value=True):
+    """The T = 0 free energy of the electron gas (per volume, rest mass excluded) and its u-derivatives.
+
+    f_0 = (m_e c^2 / (pi^2 lambda_C^3)) int_0^x y^2 (sqrt(1 + y^2) - 1) dy, the kinetic energy density of
+    the filled Fermi sphere (Chandrasekhar 1939), x = p_F / (m_e c); f_0u = n mu_0 with the kinetic Fermi
+    energy mu_0 = m_e c^2 x^2 / (1 + eps), eps = sqrt(1 + x^2); f_0uu = n (mu_0 + n dmu_0/dn),
+    n dmu_0/dn = m_e c^2 x^2 / (3 eps); u = ln n, n in cm^-3. Returns (f_0, f_0u, f_0uu), erg cm^-3
+    (f_0 None if not ``value``: eta and deta/dn need only the derivatives).
+
+    The pair-free table holds the free energy minus f_0 (subtracted at the nodes, added back at evaluation):
+    in degenerate matter f is f_0 plus a thermal part smaller by ~(kT/mu_0)^2, and a table of the whole f
+    would bury that part (and with it S and c_V) in the rounding of f_0.
+    """
+    n = np.asarray(n, dtype=float)
+    x = _X0 * n ** (1.0 / 3.0)
+    x2 = x * x
+    eps = np.sqrt(1.0 + x2)
+    mu0 = _MC2 * x2 / (1.0 + eps)
+    derivs = n * mu0, n * (mu0 + _MC2 * x2 / (3.0 * eps))
+    if not value:
+        return (None,) + derivs
+    small = x < _X_SERIES
+    xs = np.where(small, x, 0.0)
+    y = xs * xs
+    ser = np.full_like(x, _SERIES[-1])
+    for coef in _SERIES[-2::-1]:
+        ser = ser * y + coef
+    ser = ser * y * y * xs
+    xl = np.where(small, 1.0, x)
+    closed = 0.125 * (xl * (2.0 * xl * xl + 1.0) * np.sqrt(1.0 + xl * xl) - np.arcsinh(xl)) - xl * xl * xl / 3.0
+    return (_E_UNIT * np.where(small, ser, closed),) + derivs
+
+
+def _ujet_mul(a, b):
+    """Product of two (value, d/du, d2/du2) triples."""
+    return (a[0] * b[0], a[1] * b[0] + a[0] * b[1], a[2] * b[0] + 2.0 * a[1] * b[1] + a[0] * b[2])
+
+
+def _ujet_inv(a):
+    r = 1.0 / a[0]
+    return (r, -a[1] * r * r, (2.0 * a[1] * a[1] * r - a[2]) * r * r)
+
+
+def _sommerfeld_nodes(u, v):
+    """Node data (9, ...) of the thermal free energy f - f_0 of the degenerate pair-free gas.
+
+    Sommerfeld expansion to (kT)^4 (Landau & Lifshitz, Statistical Physics, sec. 58): at the chemical
+    potential mu (kinetic), P(mu, T) = P_0(mu) + delta, delta = a t^2 D(mu) + b t^4 D''(mu), t = kT,
+    a = pi^2/6, b = 7 pi^4/360, D = dn_0/dmu the density of states of the T = 0 gas. The Legendre
+    transform to fixed n gives (our derivation, to order t^4)
+
+        f(n, T) - f_0(n) = -delta(mu_0) + delta_mu(mu_0)^2 / (2 D) = t^2 A(n) + t^4 B(n),
+        A = -a D,  B = -b D'' + a^2 D'^2 / (2 D),
+
+    mu_0 the T = 0 Fermi energy. Relativistic gas: D = g / (pi^2 lambda_C^3 m_e c^2), g = x eps,
+    dg/deps = (2 x^2 + 1) / x, d2g/deps2 = eps (2 x^2 - 1) / x^3, d/dmu = (1/m_e c^2) d/deps. The next
+    term is smaller than the t^2 term by ~(pi/eta)^4, below 1e-8 of it at eta > ETA_SOMMERFELD.
+    Returns G, G_u, G_v, G_uu, G_vv, G_uv, G_uuv, G_uvv, G_uuvv (u = ln n, v = ln T), the table's order.
+    """
+    x = _X0 * np.exp(u / 3.0)
+    X = (x, x / 3.0, x / 9.0)                                    # x ∝ n^(1/3) as a jet in u
+    X2 = _ujet_mul(X, X)
+    e = np.sqrt(1.0 + X2[0])
+    EPS = (e, 0.5 * X2[1] / e, 0.5 * X2[2] / e - 0.25 * X2[1] ** 2 / e ** 3)
+    iX = _ujet_inv(X)
+    g = _ujet_mul(X, EPS)
+    g1 = _ujet_mul((2.0 * X2[0] + 1.0, 2.0 * X2[1], 2.0 * X2[2]), iX)
+    g2 = _ujet_mul(_ujet_mul(EPS, (2.0 * X2[0] - 1.0, 2.0 * X2[1], 2.0 * X2[2])),
+                   _ujet_mul(iX, _ujet_mul(iX, iX)))
+    K = 1.0 / (np.pi ** 2 * _LAMBDA_C ** 3 * _MC2)
+    A = tuple(-_SOMM_A * K * c for c in g)
+    q = _ujet_mul(_ujet_mul(g1, g1), _ujet_inv(g))
+    B = tuple(K / _MC2 ** 2 * (-_SOMM_B * c2 + 0.5 * _SOMM_A ** 2 * cq) for c2, cq in zip(g2, q))
+    t2 = (_K * np.exp(v)) ** 2
+    t4 = t2 * t2
+    a0, a1, a2 = (t2 * c for c in A)
+    b0, b1, b2 = (t4 * c for c in B)
+    return np.stack([a0 + b0, a1 + b1, 2 * a0 + 4 * b0, a2 + b2, 4 * a0 + 16 * b0, 2 * a1 + 4 * b1,
+                     2 * a2 + 4 * b2, 4 * a1 + 16 * b1, 4 * a2 + 16 * b2])
+
+
+def _split_degenerate(G, u, v):
+    """Node data of the pair-free table as evaluated: f - f_0(n), with the Sommerfeld expansion in place
+    of the quadrature where eta > ETA_SOMMERFELD (there the quadrature's entropy, S = (E + P - mu n)/T,
+    is a difference of numbers larger than S by ~eta^2, and its noise would be S's)."""
+    G = np.array(G, dtype=float)
+    U, V = np.meshgrid(u, v, indexing="ij")
+    f0, f0u, f0uu = degenerate_free_energy(np.exp(U))
+    eta = G[1] / (np.exp(U) * _K * np.exp(V))
+    G[0] -= f0
+    G[1] -= f0u
+    G[3] -= f0uu
+    deg = eta > ETA_SOMMERFELD
+    G[:, deg] = _sommerfeld_nodes(U[deg], V[deg])
+    return G
+
+
 def _zero_charge(T, pairs):
     """P_0, S_0 and (dE/dT) along n = 0 (mu = -m_e c^2): the n-independent pair gas."""
     P0, S0, C0 = (np.zeros_like(T) for _ in range(3))
@@ -276,6 +394,10 @@ class _Table:
         self.hu, self.hv = float(u[1] - u[0]), float(v[1] - v[0])
         self.nu, self.nv = u.size, v.size
         G = data["G"]
+        # the pair-free table holds f - f_0(n) (see degenerate_free_energy); f_0 is added at evaluation
+        self.split = not self.pairs
+        if self.split:
+            G = _split_degenerate(G, u, v)
         hu, hv = self.hu, self.hv
         # data per (u-order p, v-order q), scaled to the unit cell
         order = {(0, 0): 0, (1, 0): 1, (0, 1): 2, (2, 0): 3, (0, 2): 4, (1, 1): 5,
@@ -405,6 +527,9 @@ def _eta_light(tab, n, T):
     R, _ = _interpolate(tab, u, v, light=True)
     hu = tab.hu
     Gu, Guu = R[0] / hu, R[1] / (hu * hu)
+    if tab.split:
+        _, f0u, f0uu = degenerate_free_energy(n, value=False)
+        Gu, Guu = Gu + f0u, Guu + f0uu
     kT = _K * T
     c0 = _rest_shift(v)[0] if tab.pairs else 0.0
     return (Gu / n - c0) / kT, (Guu - Gu) / (n * n * kT)
@@ -417,6 +542,10 @@ def _evaluate(tab, n, T):
     hu, hv = tab.hu, tab.hv
     G, Gu, Guu = R[0], R[1] / hu, R[2] / (hu * hu)
     Gv, Guv, Gvv = R[3] / hv, R[4] / (hu * hv), R[5] / (hv * hv)
+    if tab.split:
+        # the T = 0 part depends on n only: the T-derivatives (S, c_V) are the table's thermal part alone
+        f0, f0u, f0uu = degenerate_free_energy(n)
+        G, Gu, Guu = G + f0, Gu + f0u, Guu + f0uu
     kT = _K * T
     if tab.pairs:
         # 1-D zero-charge part, depends on v only, on its finer grid

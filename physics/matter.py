@@ -265,7 +265,10 @@ def matter(rho, T, comp: Composition, electrons: str, ionization: str, pairs: bo
     deta_drho = es.deta_dn * dn_drho
     deta_dT = es.deta_dT + es.deta_dn * dn_dT
 
-    # electrons, per gram; S = (E + P - eta k T n) / T per volume, differentiated term by term
+    # electrons, per gram. S per volume and its partials from the gas's own S, (dP/dT)_n and (dE/dT)_n:
+    # (dS/dn)_T = (S - (dP/dT)_n) / n (from P = n f_n - f), (dS/dT)_n = (dE/dT)_n / T. Not from
+    # S = (E + P - eta k T n) / T: in degenerate matter that difference is ~eta^2 smaller than its terms
+    # and rounding would swamp it (S < 0 measured at eta > 1e5)
     gas = es.gas
     n = n_e
     P_e = gas.P
@@ -274,9 +277,9 @@ def matter(rho, T, comp: Composition, electrons: str, ionization: str, pairs: bo
     Ee = gas.E / r
     Ee_rho = es.dE_dn * dn_drho / r - gas.E / r**2
     Ee_T = (es.dE_dT_n + es.dE_dn * dn_dT) / r
-    S_vol = (gas.E + P_e - eta * k * t * n) / t
-    S_n = (es.dE_dn + es.dP_dn - eta * k * t - k * t * n * es.deta_dn) / t
-    S_Tn = (es.dE_dT_n + es.dP_dT_n - eta * k * n - k * t * n * es.deta_dT) / t - S_vol / t
+    S_vol = gas.S
+    S_n = (gas.S - es.dP_dT_n) / n
+    S_Tn = es.dE_dT_n / t
     Se = S_vol / r
     Se_rho = S_n * dn_drho / r - S_vol / r**2
     Se_T = (S_Tn + S_n * dn_dT) / r

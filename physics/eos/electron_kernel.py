@@ -5,7 +5,8 @@ their derivatives in ln n and ln T, without leaving a numba kernel?
 
 This is the pair-free table of :mod:`thermoplane.physics.electron_table` (the Helmholtz free energy of
 the Fermi-Dirac gas by biquintic Hermite interpolation, after Timmes & Swesty 2000), read cell by cell:
-the same monomial coefficients, the same arithmetic, so it agrees with ``table_state(n, T, pairs=False)``
+the same monomial coefficients and the same T = 0 part f_0(n) added back (:func:`degenerate_point`), the
+same arithmetic, so it agrees with ``table_state(n, T, pairs=False)``
 to rounding (tested). Below 1e4 cm^-3 (the table's lower edge) the gas is non-degenerate to far better
 than 1e-12, so its free energy is that of the edge scaled exactly as a Boltzmann gas scales,
 f(n, T) = (n/n0) f(n0, T) + n kT ln(n/n0), which keeps the relativistic temperature dependence of the
@@ -21,7 +22,7 @@ import numpy as np
 from numba import njit
 
 from .. import constants as const
-from ..electron_table import TABLE_RANGE, _table
+from ..electron_table import _E_UNIT, _MC2, _SERIES, _X0, _X_SERIES, TABLE_RANGE, _table
 
 __all__ = ["electron_arrays", "electron_point", "classical_point"]
 
@@ -35,6 +36,27 @@ def electron_arrays():
     lo_n, _, lo_T, hi_T = TABLE_RANGE
     return (np.ascontiguousarray(tab.CT.T), tab.u0, tab.v0, tab.hu, tab.hv, tab.nu, tab.nv,
             lo_n * math.log(10.0), lo_T * math.log(10.0), hi_T * math.log(10.0))
+
+
+_NS = len(_SERIES)
+
+
+@njit(cache=True, error_model="numpy")
+def degenerate_point(n):
+    """(f_0, f_0u, f_0uu) of physics.electron_table.degenerate_free_energy at one n, the same arithmetic."""
+    x = _X0 * n ** (1.0 / 3.0)
+    x2 = x * x
+    eps = math.sqrt(1.0 + x2)
+    if x < _X_SERIES:
+        y = x * x
+        ser = _SERIES[_NS - 1]
+        for k in range(_NS - 2, -1, -1):
+            ser = ser * y + _SERIES[k]
+        f = ser * y * y * x
+    else:
+        f = 0.125 * (x * (2.0 * x * x + 1.0) * math.sqrt(1.0 + x * x) - math.asinh(x)) - x * x * x / 3.0
+    mu0 = _MC2 * x2 / (1.0 + eps)
+    return _E_UNIT * f, n * mu0, n * (mu0 + _MC2 * x2 / (3.0 * eps))
 
 
 @njit(cache=True, error_model="numpy")
@@ -116,6 +138,11 @@ def electron_point(n, T, tab, out):
     Gv /= hv
     Guv /= hu * hv
     Gvv /= hv * hv
+    # the table holds f - f_0(n) (physics.electron_table.degenerate_free_energy); add f_0 back
+    f0, f0u, f0uu = degenerate_point(math.exp(u) if below else n)
+    G += f0
+    Gu += f0u
+    Guu += f0uu
     kT = _K * T
     if below:
         # Boltzmann scaling from the edge n0: G = (n/n0) G0 + kT n (u - u0)

@@ -6,7 +6,7 @@ plasma temperature T_p?
 
 Free energy per ion over kT, as an excess over the classical ideal ion gas:
 
-    f_liq = f_OCP(Gamma) + f_q(eta) + (D(eta) - 1) [f_OCP(Gamma) - f_lat,cl(Gamma, eta)]
+    f_liq = f_qlat(Gamma, eta) + [Delta(Gamma), faded or frozen as T -> 0]     (-> f_OCP + f_q as eta -> 0)
 
 - f_OCP: the analytic fit of Potekhin & Chabrier (2000, Phys. Rev. E 62, 8554, eqs. (16)-(17); the form
   goes back to Chabrier & Potekhin 1998, Phys. Rev. E 58, 4941), A1 = -0.9070, A2 = 0.62954,
@@ -18,14 +18,38 @@ Free energy per ion over kT, as an excess over the classical ideal ion gas:
   term eta^2 / 24 (Hansen & Vieillefosse 1975) and grows to the zero-point energy (3/2) u_1 eta at
   eta >> 1. We use that form with the bcc phonon spectrum of physics.eos.ion_solid (our reading of their
   prescription; their fit adds a correction for the liquid's different frequency moments, not reproduced).
-- The last term is ours. Alone, f_q removes the classical harmonic 3 k of heat capacity per ion, while the
-  classical liquid has only 3/2 k (ideal) plus its excess: the quantum liquid's c_V and (dP/dT) would go
-  negative for T << T_p (measured: c_V ~ -0.3 k per ion for hydrogen at 1e8 g/cm^3, 2.5e6 K). With
-  D(eta) = 1 / (1 + (eta/3)^4) the liquid's classical excess over the classical harmonic lattice,
-  f_OCP - [C_M Gamma + 3 ln eta + 3 <ln(omega/omega_p)> - f_id], fades as the ions turn quantum, so the
-  quantum liquid tends to the quantum harmonic lattice (c_V >= 0, S -> 0). D - 1 = O(eta^4) keeps the
-  exact Wigner–Kirkwood term; in the classical limit f_liq is the OCP fit. The crystal-liquid difference
-  then fades too, so the latent heat vanishes for eta >> 3 (quantum melting is not modelled).
+- The liquid's classical excess over the classical harmonic lattice is ours to treat. Written
+  f_OCP + f_q = f_qlat + Delta(Gamma), with f_qlat = C_M Gamma + f_harm(eta) - f_id the quantum harmonic
+  lattice and Delta(Gamma) = f_OCP - [C_M Gamma + 1.5 ln Gamma + c] the classical liquid's excess over the
+  classical lattice (a function of Gamma alone: 3 ln eta - f_id = 1.5 ln Gamma + const). Alone, Delta would
+  keep its entropy as T -> 0; it is made to vanish in one of two ways, weighted by a function of density
+  alone (so that c_V is the weighted sum of the two c_V, no cross terms):
+
+      f_liq = f_qlat + W(Gamma_0) Delta_frozen + (1 - W(Gamma_0)) Delta_faded,   W = 1 / (1 + (Gamma_0 / 5)^4),
+
+  Gamma_0 = ETA_FADE Gamma / eta the coupling at T_0 = T_p / ETA_FADE (a function of density).
+  * faded (strong coupling, heavy ions): Delta_faded = D(eta) Delta(Gamma), D = 1 / (1 + (eta / 3)^4). The
+    quantum liquid tends to the quantum lattice and the latent heat vanishes for eta >> 3 (quantum melting
+    is not modelled). Alone it gives c_V < 0 in weakly coupled quantum matter (light ions, Gamma < 10,
+    T < 0.4 T_p: down to -1.2 k per ion for hydrogen at 10^8.3-10^10 g/cm^3 on the default plane,
+    measured): the harmonic quantum correction removes up to 3 k, more than the weakly coupled liquid has.
+  * frozen (weak coupling, light ions at high density): the excess freezes below T_0, evaluated as the
+    classical free energy at T_eff = (T^4 + T_0^4)^(1/4), minus its T -> 0 limit with a tail that starts
+    at T_1 = 4 T_0 (all ours):
+
+        Delta_frozen = r Delta(Gamma / r) - (eta / 3) (1 + (T / T_1)^4)^(-3/4) Delta(Gamma_0),
+        r = T_eff / T = (1 + (eta / 3)^4)^(1/4),
+
+    Gamma_0 smoothly capped near 300 in the last term (the fit read far outside its range otherwise).
+    It tends to 0 like the faded form as T -> 0, so the melting line stays where the free energies cross.
+  Both forms: r - 1, D - 1 and the tail are O(eta^4) at high T, so the exact Wigner–Kirkwood term eta^2/24 is
+  kept and f_liq is the OCP fit as eta -> 0; S -> 0 as T -> 0 (third law). Measured: the ions' own c_V >= 0
+  on the whole default plane for hydrogen-rich, helium, C/O and iron matter (tests/physics/test_dense_eos.py);
+  the liquid alone keeps c_V >= 0 for Gamma <= 300 and eta / Gamma <= 1.6 (1.55 for hydrogen at 1e10 g/cm^3;
+  tests/physics/test_dense_plasma.py), and dips to -0.04 k per ion at eta / Gamma = 1.7 (hydrogen near
+  2e10 g/cm^3), where ion exchange, not modelled, matters too. Our construction, not a published fit:
+  Potekhin & Chabrier (2010) give no form for the quantum liquid's heat capacity beyond the
+  Wigner–Kirkwood order that we could check.
 """
 
 from __future__ import annotations
@@ -36,14 +60,21 @@ import numpy as np
 from numba import njit
 
 from . import jet
-from .ion_solid import HARMONIC_CLASSICAL, MADELUNG_BCC, harmonic_quantum_correction
+from .ion_solid import HARMONIC_CLASSICAL, MADELUNG_BCC, harmonic
 from ..coulomb import A1, A2, A3, B1, B2, B3, B4   # the liquid fit's coefficients, kept in one place
 from .plasma_parameters import coupling, ideal_ion, quantum
 
 __all__ = ["ocp_liquid", "liquid_ion", "liquid_ion_free_energy"]
 
-#: eta at which the liquid's classical excess over the lattice is halved (our choice; see above)
+#: T_0 = T_p / ETA_FADE: the liquid's classical excess over the lattice freezes below T_0 (our choice)
 ETA_FADE = 3.0
+#: Gamma_0 (the coupling at T_0 = T_p / ETA_FADE) at which the frozen and the faded excess weigh equally
+GAMMA_FROZEN = 5.0
+#: the frozen excess's T -> 0 limit is taken off below T_1 = FROZEN_TAIL T_0; Gamma_0 is capped near FROZEN_CAP
+FROZEN_TAIL = 4.0
+FROZEN_CAP = 300.0
+#: ln(eta^3 / (n lambda^3)) - 1.5 ln Gamma: the classical lattice's 3 ln eta - f_id = 1.5 ln Gamma + this + 1
+_LN_ETA3_NL3 = math.log(4.0 * math.pi / 3.0) + 1.5 * math.log(3.0 / (2.0 * math.pi))
 #: below this eta the quantum correction is its Wigner–Kirkwood term alone
 ETA_SERIES = 1e-3
 
@@ -66,6 +97,15 @@ def ocp_liquid(G):
 
 
 @njit(cache=True)
+def _excess_over_lattice(G):
+    """Delta(Gamma) = f_OCP - [C_M Gamma + 1.5 ln Gamma + c], the classical liquid over the classical harmonic
+    lattice (both as excesses over the ideal gas), Gamma a jet."""
+    lattice = jet.addc(jet.add(jet.scale(G, MADELUNG_BCC), jet.scale(jet.log(G), 1.5)),
+                       _LN_ETA3_NL3 + 1.0 + HARMONIC_CLASSICAL)
+    return jet.sub(ocp_liquid(G), lattice)
+
+
+@njit(cache=True)
 def liquid_ion(n_e, T, Z, A):
     """Free energy per ion over kT of the ion liquid, excess over the classical ideal ion gas.
 
@@ -73,17 +113,30 @@ def liquid_ion(n_e, T, Z, A):
     """
     G = coupling(n_e, T, Z)
     eta = quantum(n_e, T, Z, A)
-    f_ocp = ocp_liquid(G)
     if eta[0] < ETA_SERIES:
         # classical ions: the quantum correction is the Wigner–Kirkwood term (next term ~ eta^4, below
-        # 1e-12 kT here) and the fade term is O(eta^4) too; skipping them saves most of the cost
-        return jet.add(f_ocp, jet.scale(jet.mul(eta, eta), 1.0 / 24.0))
-    f = jet.add(f_ocp, harmonic_quantum_correction(eta))
-    lattice_cl = jet.sub(jet.addc(jet.add(jet.scale(G, MADELUNG_BCC), jet.scale(jet.log(eta), 3.0)),
-                                  HARMONIC_CLASSICAL), ideal_ion(n_e, T, Z, A))
-    e4 = jet.pow_(jet.scale(eta, 1.0 / ETA_FADE), 4.0)
-    d_minus_1 = jet.scale(jet.div(e4, jet.addc(e4, 1.0)), -1.0)
-    return jet.add(f, jet.mul(d_minus_1, jet.sub(f_ocp, lattice_cl)))
+        # 1e-12 kT here) and the freezing of Delta is O(eta^4) too; skipping them saves most of the cost
+        return jet.add(ocp_liquid(G), jet.scale(jet.mul(eta, eta), 1.0 / 24.0))
+    # the quantum harmonic lattice, excess over the ideal gas
+    qlat = jet.sub(jet.add(jet.scale(G, MADELUNG_BCC), harmonic(eta)), ideal_ion(n_e, T, Z, A))
+    delta = _excess_over_lattice(G)
+    # (a) frozen: Delta at T_eff = (T^4 + T_0^4)^(1/4), times T_eff / T; r = (1 + (eta / ETA_FADE)^4)^(1/4)
+    r = jet.pow_(jet.addc(jet.pow_(jet.scale(eta, 1.0 / ETA_FADE), 4.0), 1.0), 0.25)
+    frozen = jet.mul(r, _excess_over_lattice(jet.div(G, r)))
+    # the frozen liquid's limit as T -> 0, N k T_0 Delta(Gamma_0) relative to the lattice, taken off again
+    # with a tail that starts at T_1 = FROZEN_TAIL T_0: - N k T_0 Delta(Gamma_0) (1 + (T/T_1)^4)^(-3/4)
+    G0 = jet.scale(jet.div(G, eta), ETA_FADE)
+    G0 = jet.mul(G0, jet.pow_(jet.addc(jet.pow_(jet.scale(G0, 1.0 / FROZEN_CAP), 4.0), 1.0), -0.25))
+    x4 = jet.pow_(jet.scale(eta, FROZEN_TAIL / ETA_FADE), -4.0)                 # (T / T_1)^4
+    tail = jet.mul(jet.scale(eta, 1.0 / ETA_FADE), jet.pow_(jet.addc(x4, 1.0), -0.75))
+    frozen = jet.sub(frozen, jet.mul(tail, _excess_over_lattice(G0)))
+    # (b) faded: D(eta) Delta, D = 1 / (1 + (eta / ETA_FADE)^4) = r^-4
+    r4 = jet.mul(jet.mul(r, r), jet.mul(r, r))
+    faded = jet.div(delta, r4)
+    # weight of (a), a function of density alone: Gamma_0 = ETA_FADE Gamma / eta, the coupling at T_0
+    g4 = jet.pow_(jet.scale(jet.div(G, eta), ETA_FADE / GAMMA_FROZEN), 4.0)
+    w = jet.inv(jet.addc(g4, 1.0))
+    return jet.add(qlat, jet.add(jet.mul(w, frozen), jet.mul(jet.addc(jet.scale(w, -1.0), 1.0), faded)))
 
 
 @njit(cache=True)

@@ -185,6 +185,46 @@ def test_classical_melting_near_gamma_175():
     assert 0.3 < u_l - u_s < 1.5
 
 
+# ---------------------------------------------------------------- the quantum liquid
+
+def _liquid_at(G, eta, Z=1.0, A=1.0):
+    """liquid_ion at given Gamma and eta = T_p/T (n_e and T solved from the two power laws)."""
+    # Gamma ∝ n^(1/3)/T, eta ∝ n^(1/2)/T: eta/Gamma ∝ n^(1/6)
+    r1 = pp.quantum(1.0, 1.0, Z, A)[0] / pp.coupling(1.0, 1.0, Z)[0]
+    n = (eta / G / r1) ** 6
+    T = pp.coupling(n, 1.0, Z)[0] / G
+    return np.array(liq.liquid_ion(n, T, Z, A))
+
+
+def test_quantum_liquid_heat_capacity_non_negative():
+    # ion c_V per ion / k = 3/2 (ideal) - (f_T + f_TT) >= 0 for Gamma <= 300 and eta / Gamma <= 1.6 (hydrogen
+    # up to ~1.3e10 g/cm^3; 1.55 at the default plane's 1e10 g/cm^3); the faded form alone reached -2 k
+    cv = [1.5 - (f[2] + f[5]) for f in (_liquid_at(10**lg, r * 10**lg)
+                                        for lg in np.linspace(-2, math.log10(300), 60)
+                                        for r in np.logspace(-4, math.log10(1.6), 30))]
+    assert min(cv) >= -1e-9
+
+
+def test_quantum_liquid_limits():
+    # Wigner-Kirkwood: f_liq - f_OCP -> eta^2 / 24 (Hansen & Vieillefosse 1975; exact for the OCP), with the
+    # next order ~eta^4
+    for G in (0.5, 10.0, 150.0):
+        for eta in (0.02, 0.05):
+            f = _liquid_at(G, eta)
+            ocp = liq.ocp_liquid(jet.loglin(G, 1 / 3, -1.0))[0]
+            assert f[0] - ocp == pytest.approx(eta**2 / 24, rel=0.01)
+    # T -> 0 at fixed density: the liquid's entropy (ideal + excess) -> 0 and c_V -> 0 like the quantum
+    # lattice (the liquid's classical excess over the lattice fades)
+    n, Z, A = 1e33, 1.0, 1.0
+    Tp = pp.plasma_temperature(n, Z, A)
+    S = []
+    for ratio in (30.0, 300.0):
+        T = Tp / ratio
+        f = np.array(liq.liquid_ion(n, T, Z, A)) + np.array(pp.ideal_ion(n, T, Z, A))
+        S.append(-(f[0] + f[2]))
+    assert 0 < S[1] < 1e-4 and S[1] < S[0] / 100
+
+
 def test_mixture_is_the_number_weighted_sum_with_screening():
     n, T = np.array([1e30]), np.array([1e6])
     Z, A, x = [6.0, 8.0], [12.0, 16.0], [0.6, 0.4]

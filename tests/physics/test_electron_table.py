@@ -134,3 +134,57 @@ def test_table_eta_matches_table_state():
         s = table_state(n, T, pairs)
         eta, deta_dn = table_eta(n, T, pairs)
         assert np.array_equal(eta, s.eta) and np.array_equal(deta_dn, s.deta_dn)
+
+
+def _sommerfeld_entropy(n, T):
+    """Leading Sommerfeld entropy of the degenerate relativistic gas, S = (pi^2/3) k^2 T D(E_F) per volume,
+    D = p_F E_F / (pi^2 hbar^3 c^2) (textbook; our own evaluation with scipy.constants in cgs)."""
+    import scipy.constants as sc
+    hbar, me, c, k = sc.hbar * 1e7, sc.m_e * 1e3, sc.c * 1e2, sc.k * 1e7
+    pF = hbar * (3 * np.pi**2 * n) ** (1 / 3)
+    E = np.sqrt((pF * c) ** 2 + (me * c * c) ** 2)
+    return np.pi**2 / 3 * k * k * T * pF * E / (np.pi**2 * hbar**3 * c * c)
+
+
+def test_entropy_of_the_strongly_degenerate_gas():
+    # eta from 1e4 to 1e8: S and c_V are ~eta^-2 of E; the table holds f - f_0(n) and the Sommerfeld thermal
+    # part, so they keep their digits between the nodes (before: S < 0 at eta > ~3e5, measured)
+    n, T = _random(3000, 24.0, 37.0, 3.0, 7.0, 7)
+    st = table_state(n, T, pairs=False)
+    deg = st.eta > 1e4
+    assert deg.sum() > 1000
+    S0 = _sommerfeld_entropy(n, T)
+    # next Sommerfeld order: relative (pi/eta)^2 ~ 1e-7 at eta = 1e4
+    assert _rel(st.gas.S[deg], S0[deg]) < 1e-6
+    assert _rel(st.dE_dT_n[deg], S0[deg]) < 1e-5        # c_V = S to leading order; ~1e-6 interpolation in T
+    assert np.all(st.gas.S > 0) and np.all(st.dE_dT_n > 0)
+
+
+def test_entropy_where_quadrature_and_sommerfeld_meet():
+    # around ETA_SOMMERFELD the nodes switch from the quadrature to the expansion: S agrees with the exact
+    # gas to 2e-6 of itself on both sides (the quadrature's own S, a difference of numbers ~eta^2 larger,
+    # is ~1e-6 high at eta ~ 3e3 against the Sommerfeld value: measured)
+    n, T = _random(3000, 20.0, 34.0, 3.0, 9.0, 8)
+    a = table_state(n, T, pairs=False)
+    mid = (a.eta > 30) & (a.eta < 3000)
+    assert mid.sum() > 100
+    b = electron_state(n[mid], T[mid], pairs=False)
+    assert _rel(a.gas.S[mid], b.gas.S) < 2e-6
+
+
+def test_compiled_kernel_reads_the_same_free_energy():
+    # physics.eos.electron_kernel mirrors the table (same coefficients, same f_0 added back); numpy's
+    # vectorised pow and arcsinh differ from libm in the last bit, hence not bit-identical
+    from thermoplane.physics.eos import electron_kernel as ek
+    n, T = _random(2000, 4.0, 36.9, 3.0, 11.4, 9)
+    st = table_state(n, T, pairs=False)
+    tab = ek.electron_arrays()
+    out = np.empty(12)
+    got = np.empty((4, n.size))
+    for i in range(n.size):
+        assert ek.electron_point(n[i], T[i], tab, out)
+        got[:, i] = out[0], out[3], out[9], out[11]
+    assert _rel(got[0], st.eta, np.maximum(np.abs(st.eta), 1.0)) < 1e-13
+    assert _rel(got[1], st.gas.P) < 1e-12
+    assert _rel(got[2], st.gas.S) < 1e-12
+    assert _rel(got[3], st.dE_dT_n) < 1e-11

@@ -281,5 +281,9 @@ def test_flags_thresholds():
 def test_flags_on_a_state():
     s = ph.evaluate(np.array([1e-2, 1e7]), np.array([1e7, 1e5]), SOLAR)
     f = rg.flags(s, SOLAR)
-    assert list(f["crystallized"]) == [False, True]      # Gamma(1e7 g/cc, 1e5 K) is in the thousands
+    # the flag is the phase: at (1e7 g/cc, 1e5 K) Gamma is in the hundreds but T ~ T_p / 200, where the
+    # crystal and the quantum liquid both tend to the quantum lattice (margin ~1e-6 kT per ion)
+    assert list(f["crystallized"]) == [False, bool(s.melt_margin[1] < 0)]
+    co = ph.Composition({"C-12": 0.5, "O-16": 0.5})
+    assert list(rg.flags(ph.evaluate(np.array([1e7, 1e7]), np.array([1e9, 1e6]), co), co)["crystallized"]) == [False, True]
     assert not f["partially_ionized"][0]                  # 1e7 K: fully ionized under every option
