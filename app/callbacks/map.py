@@ -25,7 +25,7 @@ from .composition import number, readout
 log = logging.getLogger(__name__)
 
 __all__ = ["MESSAGES", "ViewError", "parse_view", "physics_options", "map_figure", "update_map", "is_preview",
-           "PREVIEW_RESOLUTION", "zoom_ranges", "dragged_controls",
+           "PREVIEW_RESOLUTION", "zoom_ranges", "dragged_controls", "map_answer", "NO_PREVIEW",
            "composition_from_inputs", "quantity", "register"]
 
 #: Message areas, each next to the controls whose errors it shows.
@@ -331,6 +331,30 @@ def zoom_ranges(relayout) -> tuple:
     return tuple(out)
 
 
+#: Said instead of a preview when the physics is too slow to follow a slider.
+NO_PREVIEW = "The chemical picture is too slow to follow the hand: the map redraws when you let go."
+
+
+def map_answer(drag, shape, triggered, **controls) -> dict:
+    """The map callback's answer: a coarse preview while a slider is held (none for the chemical picture,
+    whose first map of each composition also builds its two-phase lines: seconds to tens of seconds), else
+    the full map; a new figure goes as a Patch of the one shown when it can (app.delta)."""
+    preview = is_preview(drag, triggered)
+    if preview and controls.get("ionization") == "chemical":
+        out = {key: no_update for key in ("figure", "readout", "view", "shape", *MESSAGES)}
+        out["phys-message"] = NO_PREVIEW
+        return out
+    out = update_map(preview=preview, **(dragged_controls(drag, controls) if preview else controls))
+    out["shape"] = no_update
+    if preview:
+        # while the hand moves, an empty message is not sent again (each output costs the browser a
+        # pass over the page's components); the full map on release writes them all
+        out.update({m: no_update for m in MESSAGES if out[m] == ""})
+    if out["figure"] is not no_update:
+        out["figure"], out["shape"] = delta.figure_update(out["figure"], shape)
+    return out
+
+
 def register(app) -> None:
     outputs = {"figure": Output("plane-graph", "figure"), "readout": Output("comp-readout", "children"),
                "view": Output("view-store", "data"),
@@ -344,16 +368,7 @@ def register(app) -> None:
     inputs["shape"] = State("map-shape", "data")
 
     def _map(drag=None, shape=None, **controls):
-        preview = is_preview(drag, ctx.triggered_prop_ids)
-        out = update_map(preview=preview, **(dragged_controls(drag, controls) if preview else controls))
-        out["shape"] = no_update
-        if preview:
-            # while the hand moves, an empty message is not sent again (each output costs the browser a
-            # pass over the page's components); the full map on release writes them all
-            out.update({m: no_update for m in MESSAGES if out[m] == ""})
-        if out["figure"] is not no_update:
-            out["figure"], out["shape"] = delta.figure_update(out["figure"], shape)
-        return out
+        return map_answer(drag, shape, ctx.triggered_prop_ids, **controls)
 
     app.callback(output=outputs, inputs=inputs)(_map)
 

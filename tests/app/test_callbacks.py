@@ -420,6 +420,16 @@ def test_preview_keeps_the_sum_rule_message():
     assert "the sum must be 1" in out["comp-message"]
 
 
+def test_no_preview_for_the_chemical_picture_the_map_waits_for_the_hand():
+    held = {"drag": True, "key": "X", "value": 0.5}
+    out = map_cb.map_answer(held, None, ["comp-drag.data"], **controls(ionization="chemical", resolution=40))
+    assert out["figure"] is no_update and out["view"] is no_update
+    assert out["phys-message"] == map_cb.NO_PREVIEW
+    # the default physics does preview (a coarse figure, a Patch or a whole one)
+    out = map_cb.map_answer(held, None, ["comp-drag.data"], **controls(resolution=40, zauto=True))
+    assert out["figure"] is not no_update
+
+
 def test_sliders_sit_beside_the_boxes():
     from thermoplane.app.layout import build_layout
     from thermoplane.app.layout import _slider_value
