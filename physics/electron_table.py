@@ -590,6 +590,47 @@ def _evaluate(tab, n, T):
                          dE_dT_n=dE_dT_n, deta_dn=deta_dn, deta_dT=deta_dT)
 
 
+def _sommerfeld_state(n, T):
+    """The pair-free gas from f_0(n) plus the Sommerfeld thermal part (:func:`_sommerfeld_nodes`), for
+    degenerate points below the table in T: the exact quadrature's entropy there is a difference of numbers
+    ~eta^2 larger than S (c_V < 0 came out at 1e9 g/cm^3 below 1e3 K). Same formulas as :func:`_evaluate`."""
+    u, v = np.log(n), np.log(T)
+    G9 = _sommerfeld_nodes(u, v)
+    f0, f0u, f0uu = degenerate_free_energy(n)
+    G, Gu, Gv, Guu, Gvv, Guv = G9[0] + f0, G9[1] + f0u, G9[2], G9[3] + f0uu, G9[4], G9[5]
+    kT = _K * T
+    dP_dn = (Guu - Gu) / n
+    dP_dT_n = (Guv - Gv) / T
+    dE_dn = (Gu - Guv) / n
+    dE_dT_n = -(Gvv - Gv) / T
+    deta_dn = (Guu - Gu) / (n * n * kT)
+    deta_dT = (Guv - Gu) / (n * kT * T)
+    dn_deta = 1.0 / deta_dn
+    dP_deta = dP_dn * dn_deta
+    dE_deta = dE_dn * dn_deta
+    gas = ElectronGas(n_minus=n.copy(), n_plus=np.zeros_like(n), n_net=n.copy(), P=Gu - G, E=G - Gv, S=-Gv / T,
+                      dn_deta=dn_deta, dn_dT=-deta_dT * dn_deta, dP_deta=dP_deta, dP_dT=dP_dT_n - dP_deta * deta_dT,
+                      dE_deta=dE_deta, dE_dT=dE_dT_n - dE_deta * deta_dT)
+    return ElectronState(gas=gas, eta=Gu / (n * kT), dP_dn=dP_dn, dP_dT_n=dP_dT_n, dE_dn=dE_dn,
+                         dE_dT_n=dE_dT_n, deta_dn=deta_dn, deta_dT=deta_dT)
+
+
+def _cold_degenerate(n, T):
+    """Points below the table in T whose electrons are degenerate beyond ETA_SOMMERFELD (with a margin:
+    eta is mu_0 / kT to a part in eta^2), where the Sommerfeld state replaces the quadrature."""
+    _, f0u, _ = degenerate_free_energy(n, value=False)
+    return (T < 10.0 ** TABLE_RANGE[2]) & (f0u / (n * _K * T) > 1.05 * ETA_SOMMERFELD)
+
+
+def _outside_state(n, T, pairs):
+    """The gas outside the table: the Sommerfeld state where cold and degenerate (no positrons can exist
+    there), else the exact quadrature."""
+    cold = _cold_degenerate(n, T)
+    if not cold.any():
+        return electron_state(n, T, pairs)
+    return _merge(n.size, [(cold, _sommerfeld_state), (~cold, lambda a, b: electron_state(a, b, pairs))], n, T)
+
+
 def _inside(n, T):
     ln0, ln1, lt0, lt1 = TABLE_RANGE
     return (n >= 10.0 ** ln0) & (n <= 10.0 ** ln1) & (T >= 10.0 ** lt0) & (T <= 10.0 ** lt1)
@@ -637,7 +678,9 @@ def table_state(n_net, T, pairs=True):
         Same fields and meaning as :func:`thermoplane.physics.electrons.electron_state`.
         Inside :data:`TABLE_RANGE` every thermodynamic field is a derivative of
         one interpolated free energy; n_plus and n_minus come from a separate
-        bicubic table of ln n_plus (for display).  Outside, the exact solver.
+        bicubic table of ln n_plus (for display).  Outside, the exact solver, except
+        below the table in T where eta > 1.05 ETA_SOMMERFELD: there f_0(n) plus the
+        Sommerfeld thermal part to (kT)^4 (the quadrature's entropy loses its digits).
 
     Raises
     ------
@@ -670,7 +713,7 @@ def table_state(n_net, T, pairs=True):
         st = _evaluate(_table(pairs), n, T)
     else:
         st = _merge(n.size, [(inside, lambda a, b: _evaluate(_table(pairs), a, b)),
-                             (~inside, lambda a, b: electron_state(a, b, pairs))], n, T)
+                             (~inside, lambda a, b: _outside_state(a, b, pairs))], n, T)
     return _reshape(st, shape)
 
 
@@ -713,7 +756,7 @@ def table_eta(n_net, T, pairs=True):
         if inside.any():
             eta[inside], deta_dn[inside] = _eta_light(_table(pairs), n[inside], T[inside])
         out = ~inside
-        st = electron_state(n[out], T[out], pairs)
+        st = _outside_state(n[out], T[out], pairs)
         eta[out], deta_dn[out] = st.eta, st.deta_dn
     return eta.reshape(shape), deta_dn.reshape(shape)
 

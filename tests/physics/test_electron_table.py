@@ -188,3 +188,36 @@ def test_compiled_kernel_reads_the_same_free_energy():
     assert _rel(got[1], st.gas.P) < 1e-12
     assert _rel(got[2], st.gas.S) < 1e-12
     assert _rel(got[3], st.dE_dT_n) < 1e-11
+
+
+def test_below_the_table_degenerate_electrons_keep_their_entropy_and_the_edge_is_seamless():
+    # below 1e3 K (the table's lower edge) in degenerate matter the Sommerfeld state replaces the
+    # quadrature, whose entropy is a difference ~eta^2 larger than S (c_V came out negative at 1e9 g/cm^3)
+    from thermoplane.physics.electron_table import table_state
+    n = np.geomspace(1e26, 1e35, 40)
+    from thermoplane import physics as ph
+    for T in (1e2, 5e2, 999.0):
+        st = table_state(n, np.full_like(n, T), pairs=False)
+        assert np.all(st.gas.S > 0) and np.all(st.dE_dT_n > 0)
+        # P and eta agree with the exact quadrature (which keeps them to ~1e-9; only S loses its digits)
+        ex = electron_state(n, np.full_like(n, T), False)
+        np.testing.assert_allclose(st.gas.P, ex.gas.P, rtol=1e-8)
+        np.testing.assert_allclose(st.eta, ex.eta, rtol=1e-8)
+        # degenerate limit: S proportional to T (Sommerfeld's leading order), and (dE/dT)_n = T (dS/dT)_n
+        # against a finite difference of S
+        h = 1e-3
+        up = table_state(n, np.full_like(n, T * (1 + h)), pairs=False)
+        dn = table_state(n, np.full_like(n, T * (1 - h)), pairs=False)
+        np.testing.assert_allclose(up.gas.S / dn.gas.S, (1 + h) / (1 - h), rtol=1e-6)
+        np.testing.assert_allclose((up.gas.S - dn.gas.S) / (2 * h), st.dE_dT_n, rtol=1e-5)
+    lo = table_state(n, np.full_like(n, 1e3 * (1 - 1e-9)), pairs=False)
+    hi = table_state(n, np.full_like(n, 1e3 * (1 + 1e-9)), pairs=False)
+    np.testing.assert_allclose(lo.gas.P, hi.gas.P, rtol=1e-9)
+    np.testing.assert_allclose(lo.gas.S, hi.gas.S, rtol=1e-3)
+    np.testing.assert_allclose(lo.dE_dT_n, hi.dE_dT_n, rtol=2e-3)
+    # the default equation of state across 1e3 K: nabla_ad steps by less than 1e-3 anywhere on the row
+    comp = ph.Composition.from_xyz(0.70, 0.28, 0.02)
+    rho = np.geomspace(1e-10, 1e10, 201)
+    a = ph.evaluate(rho, np.full_like(rho, 1e3 * (1 - 1e-7)), comp)
+    b = ph.evaluate(rho, np.full_like(rho, 1e3 * (1 + 1e-7)), comp)
+    assert np.max(np.abs(a.nabla_ad - b.nabla_ad)) < 1e-3
