@@ -87,6 +87,20 @@ def _zbar(Zi, g, C, eta, kT, gb, gone, sp, dsp):
 
 
 @njit(cache=True, error_model="numpy")
+def _charge(eta, kT, gb, gone, fixed, el_Z, el_N, el_g, el_C):
+    """Free electrons per gram over rho (the fixed ones plus sum N zbar) and its eta-partial."""
+    sp = max(eta, 0.0) + math.log1p(math.exp(-abs(eta)))          # softplus, no overflow
+    dsp = 0.5 * (1.0 + math.tanh(0.5 * eta))
+    zsum = fixed
+    zeta = 0.0
+    for k in range(el_Z.size):
+        zb, dz = _zbar(el_Z[k], el_g[k], el_C[k], eta, kT, gb, gone, sp, dsp)
+        zsum += el_N[k] * zb
+        zeta += el_N[k] * dz
+    return zsum, zeta
+
+
+@njit(cache=True, error_model="numpy")
 def _start(lnn_full, lo, rho, T, fixed, el_Z, el_N, el_g, el_C, kT, gb, gone):
     """A starting ln n_e: the same equation with non-degenerate, non-relativistic electrons,
     eta = ln(n_e / n_Q(T)), solved by cheap Newton steps (no table reads). Where that start would be
@@ -97,14 +111,7 @@ def _start(lnn_full, lo, rho, T, fixed, el_Z, el_N, el_g, el_C, kT, gb, gone):
         eta = y - lnQ
         if eta > -1.0:
             return lnn_full
-        sp = math.log1p(math.exp(eta))
-        dsp = 0.5 * (1.0 + math.tanh(0.5 * eta))
-        zsum = fixed
-        zeta = 0.0
-        for k in range(el_Z.size):
-            zb, dz = _zbar(el_Z[k], el_g[k], el_C[k], eta, kT, gb, gone, sp, dsp)
-            zsum += el_N[k] * zb
-            zeta += el_N[k] * dz
+        zsum, zeta = _charge(eta, kT, gb, gone, fixed, el_Z, el_N, el_g, el_C)
         phi = y - math.log(rho * zsum)
         new = y - min(max(phi / (1.0 - zeta / zsum), -40.0), 40.0)
         new = min(max(new, lo), lnn_full)
@@ -129,15 +136,7 @@ def _one(lnn_full, rho, T, fixed, el_Z, el_N, el_g, el_C, tab, pairs, buf):
     for _ in range(_MAX_ITER):
         if not electron_point(math.exp(y), T, tab, buf):
             return y, False
-        eta = buf[0]
-        sp = max(eta, 0.0) + math.log1p(math.exp(-abs(eta)))
-        dsp = 0.5 * (1.0 + math.tanh(0.5 * eta))
-        zsum = fixed
-        zeta = 0.0
-        for k in range(el_Z.size):
-            zb, dz = _zbar(el_Z[k], el_g[k], el_C[k], eta, kT, gb, gone, sp, dsp)
-            zsum += el_N[k] * zb
-            zeta += el_N[k] * dz
+        zsum, zeta = _charge(buf[0], kT, gb, gone, fixed, el_Z, el_N, el_g, el_C)
         n_free = rho * zsum
         phi = y - math.log(n_free)
         if abs(phi) < _TOL:

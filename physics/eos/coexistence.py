@@ -22,7 +22,7 @@ curve), s_a' = S_T^a + P_T^a v_a' (Maxwell: (ds/dv)_T = (dP/dT)_v), and P*'' fro
 Clapeyron quotient. The identities hold in the two-phase region as exactly as in each phase. Radiation adds
 a free energy linear in v, so it moves no tangent and is added afterwards.
 
-How the curve is found, per temperature: the isotherm is scanned coarsely in log rho (LOG_RHO_SCAN, every
+How the curve is found, per temperature: the isotherm is scanned coarsely in log rho (LOG_RHO_RANGE, every
 COARSE_STEP) in one call of the equilibrium solver, then finely (FINE_STEP) across its turning points if it
 has any; on its solved points each local maximum of P followed by a local minimum is a loop;
 g on the stable branch below (a) and above (b), as functions of ln P, is compared on their common pressure
@@ -38,10 +38,10 @@ import numpy as np
 
 from ..composition import Composition
 
-__all__ = ["LOG_RHO_SCAN", "T_MAX", "binodal", "apply_coexistence"]
+__all__ = ["LOG_RHO_RANGE", "T_MAX", "binodal", "apply_coexistence"]
 
 #: the densities scanned for loops, log10 g cm^-3 (the pressure-ionization band of H, He and the C/O K shells)
-LOG_RHO_SCAN = np.arange(-1.5, 4.5 + 1e-9, 0.01)
+LOG_RHO_RANGE = (-1.5, 4.5)
 #: no isotherm above this temperature is scanned (K): the loops close well below it (measured: H near
 #: 9e4 K, the solar-like mix's He loop near 2e5 K, C/O loops at 1e5-3e5 K and none at 1e6, 2e6, 4e6 K)
 T_MAX = 1.0e6
@@ -201,7 +201,7 @@ def _construct(T, comp, opts):
     if scan.size == 0:
         return res
     # 1. a coarse scan of every isotherm finds the turning points of P
-    lr = np.arange(LOG_RHO_SCAN[0], LOG_RHO_SCAN[-1] + 1e-9, COARSE_STEP)
+    lr = np.arange(LOG_RHO_RANGE[0], LOG_RHO_RANGE[1] + 1e-9, COARSE_STEP)
     P, _ = _scan(np.broadcast_to(lr, (scan.size, lr.size)), T[scan], comp, opts)
     windows = []
     for k, i in enumerate(scan):                     # per isotherm (a hundred numbers each), not per point
