@@ -68,7 +68,8 @@ _K = const.k_B
 _LN_SQRT8 = 1.5 * math.log(2.0)
 _NEWTON_TOL = 1e-13
 _MAX_ITER = 30
-#: stages whose weight is below e^-_SKIP of the largest are left out (their share is < 1e-30)
+#: stages whose weight is below e^-_SKIP of the largest are left out (their share is < 1e-30), except the
+#: first ion: in cold matter of one element it may hold every free electron however few they are
 _SKIP = 70.0
 
 
@@ -271,7 +272,7 @@ def _point(y, lnrho, lnT, el, nuc_N, nuc_Z, nuc_lnlam3, nuc_start, nuc_h2, st_E,
         lse = J.const(0.0)
         first = True
         for j in range(Z + 1):
-            if W[j, 6] < Lmax - _SKIP:
+            if W[j, 6] < Lmax - _SKIP and j != 1:
                 continue
             Lj_j = _stage_L(j, s0, st_lng, st_E, st_v, inv_kT_j, etac_j, Pi_j, W, dln_ne_dzeta)
             W[j, 7], W[j, 8], W[j, 9], W[j, 10], W[j, 11], W[j, 12], W[j, 13] = Lj_j
@@ -281,7 +282,7 @@ def _point(y, lnrho, lnT, el, nuc_N, nuc_Z, nuc_lnlam3, nuc_start, nuc_h2, st_E,
             else:
                 lse = J.logaddexp(lse, Lj_j)
         for j in range(Z + 1):
-            if W[j, 6] < Lmax - _SKIP:
+            if W[j, 6] < Lmax - _SKIP and j != 1:
                 continue
             Lj_j = (W[j, 7], W[j, 8], W[j, 9], W[j, 10], W[j, 11], W[j, 12], W[j, 13])
             lnNj = J.shift(J.sub(Lj_j, lse), lnN_i)

@@ -158,6 +158,27 @@ def test_helium_follows_ground_state_saha_at_low_density():
         assert float(s.ion_He2) == pytest.approx(f2, rel=1e-3, abs=1e-9)
 
 
+@pytest.mark.parametrize("element, A, Z, g0, g1", [("He-4", 4.00260325, 2, 1.0, 2.0), ("C-12", 12.0, 6, 1.0, 2.0)])
+def test_cold_matter_of_one_element_keeps_its_few_free_electrons(element, A, Z, g0, g1):
+    """At 1e3-2e3 K a pure element is neutral but for a share of its first ion far below e^-70 of the
+    atoms; those ions still hold every free electron, so the first ion must never be left out of the
+    sum (pure He had no root at all below ~2000 K when it was). Independent check: ideal ground-state
+    Saha in logarithms, x^2 = K / n with K = (g1/g0) 2 (2 pi m_e k T / h^2)^(3/2) e^(-chi/kT),
+    x = n_+/n << 1 (weights g of the ground levels: He 1S0 1, He+ 2S1/2 2; C 3P0 1, C+ 2P1/2 2; from memory)."""
+    comp = ph.Composition({element: 1.0})
+    chi1 = atomic_data.ionization_data(Z)[0][0] * const.eV
+    rho = np.array([1e-10, 1e-6, 1e-3])
+    for T in (1.0e3 * 1.0001, 1.5e3, 2.0e3):
+        s = ph.evaluate(rho, np.full(rho.size, T), comp, ionization="chemical")
+        assert np.all(np.isfinite(s.P)), (element, T)
+        n = rho / (A * const.m_u)
+        lnK = (math.log(2.0 * g1 / g0) + 1.5 * math.log(2.0 * math.pi * const.m_e * const.k_B * T / const.h**2)
+               - chi1 / (const.k_B * T))
+        ln_x = 0.5 * (lnK - np.log(n))
+        ln_ne = np.log(np.asarray(s.ye, float) * rho / const.m_u)
+        assert np.allclose(ln_ne, ln_x + np.log(n), atol=1e-3, rtol=0), (element, T, ln_ne - ln_x - np.log(n))
+
+
 def test_hydrogen_ionized_at_the_solar_centre():
     # BSB05 centre, from memory: rho = 150 g cm^-3, T = 1.57e7 K, X = 0.35 (burnt) to 0.70 (initial)
     for X in (0.35, 0.70):
