@@ -20,7 +20,7 @@ from .. import constants as const
 
 __all__ = ["SOURCE", "IONIZATION_TABLE", "SEMIEMPIRICAL", "THEORETICAL", "FROM_MEMORY", "Z_MAX",
            "ionization_data", "ground_level_rule", "H2_CONSTANTS", "H2_D0_EV", "H2_FROM_MEMORY", "H2_SOURCE",
-           "h2_levels", "partition_from_levels", "h2_internal_partition"]
+           "h2_levels", "partition_from_levels", "h2_internal_partition", "h2_bound_partition"]
 
 SOURCE = {
     "ionization": ("NIST Atomic Spectra Database, ionization energies: A. Kramida, Yu. Ralchenko, J. Reader "
@@ -463,3 +463,51 @@ def h2_internal_partition(T):
     (0.0, 2.05)
     """
     return partition_from_levels(T, _H2_E_K, _H2_W)
+
+
+def h2_bound_partition(T):
+    """The H2 internal partition function with each level's Planck-Larkin weight, as the chemical picture uses it.
+
+    Z_b(T) = sum over bound (v, J) of g (e^-E/T - (1 + y) e^-D0/T),  y = (D0 - E) / T  (E, D0 in kelvin)
+           = e^-D0/T sum g (e^y - 1 - y)
+
+    The same convention as the atoms' bound states (:func:`thermoplane.physics.eos.equilibrium._planck_larkin`;
+    Planck 1924, Larkin 1960, Ebeling, Kraeft & Kremp 1976): of each level the sum keeps only what the
+    scattering continuum of two H atoms cannot count as free, so a level near the dissociation limit fades
+    out smoothly and, once kT exceeds D0, molecules are not kept alive by the ~2700 bound levels of the
+    plain sum. Our choice for the molecule (the convention is derived for Coulomb pairs); where kT << D0
+    it equals :func:`h2_internal_partition` to within (sum g) (1 + D0/kT) e^-D0/kT (3e-5 relative at 3000 K).
+
+    Returns
+    -------
+    lnZ, dlnZ_dlnT, d2lnZ_dlnT2 : ndarray, shape of T
+        The derivatives are those of the same sum (written out per level; levels with y < 1 in the
+        factored form e^-D0/T (expm1(y) - y), which has no cancellation).
+    """
+    T = np.asarray(T, dtype=float)
+    if not np.all(np.isfinite(T)) or np.any(T <= 0.0):
+        raise ValueError("temperature T must be finite and > 0 K for the partition function")
+    D = H2_D0_EV * const.eV / const.k_B
+    E = _H2_E_K[:, None]
+    w = _H2_W[:, None]
+    flat, inverse = np.unique(T.ravel(), return_inverse=True)
+    out = np.empty((3, flat.size))
+    for start in range(0, flat.size, _CHUNK):
+        t = flat[None, start:start + _CHUNK]
+        a, y0 = E / t, D / t
+        y = y0 - a
+        A, B = np.exp(-a), np.exp(-y0)
+        near = y < 1.0
+        yn = np.where(near, y, 0.0)           # the factored form only where it is used (no overflow)
+        e1 = np.expm1(yn)
+        h = np.where(yn < 1e-4, yn * yn * (0.5 + yn / 6.0 + yn * yn / 24.0), e1 - yn)
+        z = np.where(near, B * h, A - (1.0 + y) * B)
+        z1 = np.where(near, B * (y0 * h - yn * e1), a * A + B * (y - (1.0 + y) * y0))
+        z2 = np.where(near, B * (y0 * y0 * h - 2.0 * y0 * yn * e1 - y0 * h + yn * e1 + yn * yn * (1.0 + e1)),
+                      (a * a - a) * A + B * (y0 * (y - (1.0 + y) * y0) - y + y0 + 2.0 * y * y0))
+        Z = (w * z).sum(axis=0)
+        d1 = (w * z1).sum(axis=0) / Z
+        out[0, start:start + _CHUNK] = np.log(Z)
+        out[1, start:start + _CHUNK] = d1
+        out[2, start:start + _CHUNK] = (w * z2).sum(axis=0) / Z - d1 * d1
+    return tuple(o[inverse.ravel()].reshape(T.shape) for o in out)

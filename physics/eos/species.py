@@ -11,7 +11,8 @@ internal energies, statistical weights and sizes?
   for the ground state of a one-electron ion; our own choice of size, no source). Bare nuclei have
   v = 0. Ionization energies and weights: :mod:`thermoplane.physics.eos.atomic_data`.
 - Protium (Z = 1, A < 1.5) also forms H2 (dissociation energy and internal partition function from
-  :mod:`~thermoplane.physics.eos.atomic_data`); its volume is taken as twice that of the atom (our own
+  :mod:`~thermoplane.physics.eos.atomic_data`, each bound level with its Planck-Larkin weight as for the
+  atoms, :func:`~thermoplane.physics.eos.atomic_data.h2_bound_partition`); its volume is taken as twice that of the atom (our own
   choice). Nuclear spins are left out of every weight (the H2 partition function is divided by the
   four nuclear-spin states of two protons), so fully ionized matter has the entropy of the
   fully ionized equation of state.
@@ -82,9 +83,11 @@ def species_for(comp: Composition) -> Species:
 
 
 def _h2_table():
-    """ln Z_int of H2 (nuclear spins divided out) and its first two ln T derivatives on a ln T grid."""
+    """ln Z_int of H2 (Planck-Larkin weights, nuclear spins divided out) and its first two ln T derivatives
+    on a ln T grid; beyond 1e6 K the kernels extend ln Z linearly with the end slope (the sum falls as T^-2
+    there, slope -1.96 at 1e6 K)."""
     lnT = np.linspace(np.log(10.0), np.log(1e6), 1201)
-    lnZ, d1, d2 = atomic_data.h2_internal_partition(np.exp(lnT))
+    lnZ, d1, d2 = atomic_data.h2_bound_partition(np.exp(lnT))
     return lnT, np.asarray(lnZ, float) - np.log(4.0), np.asarray(d1, float), np.asarray(d2, float)
 
 

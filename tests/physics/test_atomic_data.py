@@ -236,6 +236,44 @@ def test_h2_vectorised_no_warnings_and_chunking():
     assert np.all(np.diff(lnZ.ravel()) >= -1e-13)    # Z_int rises with T (all weights positive)
 
 
+def test_h2_planck_larkin_sum_equals_the_plain_sum_while_cold():
+    # each level of weight g loses g (1 + y) e^-D0/kT <= g (1 + D0/kT) e^-D0/kT (y = (D0 - E)/kT <= D0/kT),
+    # so Z_plain - Z_PL <= (sum g) (1 + D0/kT) e^-D0/kT: a bound from the level count alone
+    _, w, _, _ = ad.h2_levels()
+    D = ad.H2_D0_EV * ad.const.eV / ad.const.k_B
+    T = np.array([10.0, 300.0, 1000.0, 2000.0, 3000.0])
+    plain, _, _ = ad.h2_internal_partition(T)
+    pl, _, _ = ad.h2_bound_partition(T)
+    loss = np.exp(plain) - np.exp(pl)
+    assert np.all(loss >= 0.0)
+    assert np.all(loss <= w.sum() * (1.0 + D / T) * np.exp(-D / T) * (1.0 + 1e-12) + 1e-300)
+    np.testing.assert_allclose(pl[:3], plain[:3], rtol=0, atol=1e-12)
+
+
+def test_h2_planck_larkin_sum_falls_as_T_to_the_minus_2_when_hot():
+    # kT >> D0: e^y - 1 - y -> y^2/2 and e^-D0/kT -> 1, so Z -> sum g (D0 - E)^2 / (2 T^2) (own expansion,
+    # next order ~ D0/T); the plain sum instead saturates at the total weight of the levels (~2700 / 4)
+    E, w, _, _ = ad.h2_levels()
+    D = ad.H2_D0_EV * ad.const.eV / ad.const.k_B
+    T = np.array([1e8, 1e9])
+    lnZ, d1, _ = ad.h2_bound_partition(T)
+    expect = np.log(np.sum(w[:, None] * (D - E[:, None]) ** 2, axis=0) / (2.0 * T**2))
+    np.testing.assert_allclose(lnZ, expect, rtol=0, atol=3.0 * D / T[0])
+    np.testing.assert_allclose(d1, -2.0, rtol=0, atol=3.0 * D / T[0])
+
+
+def test_h2_planck_larkin_derivatives_match_finite_differences():
+    T = np.logspace(0.5, 8.0, 80)
+    h = 1e-4
+    lnZ_p, d1_p, _ = ad.h2_bound_partition(T * math.exp(h))
+    lnZ_m, d1_m, _ = ad.h2_bound_partition(T * math.exp(-h))
+    with warnings.catch_warnings():
+        warnings.simplefilter("error")
+        _, d1, d2 = ad.h2_bound_partition(T)
+    np.testing.assert_allclose(d1, (lnZ_p - lnZ_m) / (2 * h), rtol=0, atol=1e-7)
+    np.testing.assert_allclose(d2, (d1_p - d1_m) / (2 * h), rtol=0, atol=1e-6)
+
+
 @pytest.mark.parametrize("T", [0.0, -5.0, np.nan, np.inf])
 def test_h2_bad_temperature(T):
     with pytest.raises(ValueError, match="temperature"):

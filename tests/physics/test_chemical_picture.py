@@ -201,8 +201,9 @@ def test_h2_half_dissociated_where_an_independent_evaluation_says():
     """Pure H at 1e-8 g cm^-3: the kernel's T of 50 % H2 against the same physics written out here.
 
     Independent: n_H2 / n_H^2 = lambda_H^3 2^(3/2) (Z_int / 4) / g_H^2 exp(D0/kT), with Z_int summed
-    directly over the bound levels of atomic_data.h2_levels (not the kernel's interpolation), and
-    ionization neglected (x_H+ < 1e-5 there).
+    directly over the bound levels of atomic_data.h2_levels with their Planck-Larkin weights,
+    e^-E/kT - (1 + y) e^-D0/kT, y = (D0 - E)/kT (not the kernel's interpolation), and ionization
+    neglected (x_H+ < 1e-5 there).
     """
     rho = 1e-8
     comp = COMPOSITIONS["hydrogen"]
@@ -211,7 +212,9 @@ def test_h2_half_dissociated_where_an_independent_evaluation_says():
 
     def f_h2_independent(T):
         kT = const.k_B * T
-        Z = float(np.sum(g * np.exp(-np.asarray(E_K) / T)))
+        D_K = atomic_data.H2_D0_EV * const.eV / const.k_B
+        y = (D_K - np.asarray(E_K)) / T
+        Z = float(np.sum(g * (np.exp(-np.asarray(E_K) / T) - (1.0 + y) * np.exp(-D_K / T))))
         lam3 = (const.h**2 / (2.0 * math.pi * m_H * kT)) ** 1.5
         K = lam3 * 2.0**1.5 * (Z / 4.0) / 4.0 * math.exp(atomic_data.H2_D0_EV * const.eV / kT)
         n = rho / m_H
@@ -228,6 +231,15 @@ def test_h2_half_dissociated_where_an_independent_evaluation_says():
     T_code = half(lambda T: float(ph.evaluate(rho, T, comp, ionization="chemical").h2_fraction))
     T_ind = half(f_h2_independent)
     assert T_code == pytest.approx(T_ind, rel=2e-3)
+
+
+def test_h2_gone_once_kT_exceeds_its_binding_even_in_dense_matter():
+    """kT = 26 eV >> D0 = 4.5 eV at 3e5 K: with Planck-Larkin weights for its levels, H2 is a trace
+    (< 1e-3 of H) at 1 g cm^-3 and gone at low density; the plain bound-level sum (~2700 levels) kept
+    2.7 % at 3e5 K and 1e-6 up to ~3e6 K there."""
+    comp = COMPOSITIONS["solar-like"]
+    s = ph.evaluate(np.array([1e-2, 1.0, 1.0]), np.array([3e5, 3e5, 1e6]), comp, ionization="chemical")
+    assert s.h2_fraction[0] < 1e-8 and s.h2_fraction[1] < 1e-3 and s.h2_fraction[2] < 1e-6
 
 
 def test_fully_ionized_limit_equals_the_fully_ionized_equation_of_state():

@@ -13,7 +13,7 @@ from thermoplane.physics.eos.coexistence import binodal
 from thermoplane.physics.eos.equilibrium import solve_equilibrium
 
 H_ONLY = ph.Composition({"H-1": 1.0})
-TEMPS = np.array([1.5e4, 2e4, 3e4, 5e4, 7e4])
+TEMPS = np.array([1.5e4, 2e4, 3e4, 5e4, 6e4])   # the loop closes between 6e4 and 7e4 K
 
 
 def _chem(rho, T, comp=H_ONLY):
