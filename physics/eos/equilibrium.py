@@ -125,12 +125,14 @@ def _coul(W, z, dln_ne_dzeta):
 
 @njit(cache=True, error_model="numpy")
 def _point(y, lnrho, lnT, el, nuc_N, nuc_Z, nuc_lnlam3, nuc_start, nuc_h2, st_E, st_lng, st_v,
-           h2_v, h2_D0, coul_on, tx, ty, t1, t2, diag, L):
+           h2_v, h2_D0, coul_on, tx, ty, t1, t2, diag, L, PLc):
     """Conditions R1..R4 and P, E, S (per gram) as jets at one point; fills diag.
 
     y = (ln n_e', u = -ln(1 - zeta), c, ln n_h'); el = (eta, eta_1, eta_T, P, P_1, P_T, e, e_1, e_T, s, s_1, s_T): the
-    electron gas at n_e' = e^y1 (per volume; _1 = d/dy1, _T = d/dlnT). L: scratch (max Z + 1) x 14:
-    columns 0-5 the Coulomb term of charge z (computed once per point), 6 the stage weight, 7-13 its jet.
+    electron gas at n_e' = e^y1 (per volume; _1 = d/dy1, _T = d/dlnT). L: scratch (max Z + 1) x 17:
+    columns 0-5 the Coulomb term of charge z, 6-8 the weight of stage z of the nuclide at hand, its share
+    and its ln T coefficient (:func:`_stages`). PLc: the Planck-Larkin sums of every stage for this T
+    (:func:`_fill_planck_larkin`, filled when ln T changes).
     diag: [ion_H, ion_He1, ion_He2, h2_fraction, electrons from metals per gram, N_e per gram,
            P_trans, P_e, P_coul, heavy particles per gram]
     """
@@ -161,6 +163,8 @@ def _point(y, lnrho, lnT, el, nuc_N, nuc_Z, nuc_lnlam3, nuc_start, nuc_h2, st_E,
     etac = el[0] + y[2]
     Pi = Pi_j[0]
     W = L
+    if PLc[0, 3] != lnT:
+        _fill_planck_larkin(PLc, lnT, nuc_N, nuc_Z, nuc_start, st_E)
     for z in range(1, W.shape[0]):
         f0, f1, f2, f3, f4, f5 = ion_coulomb(float(z), ln_ne, lnT) if coul_on else (0.0, 0.0, 0.0, 0.0, 0.0, 0.0)
         W[z, 0] = f0
@@ -184,6 +188,7 @@ def _point(y, lnrho, lnT, el, nuc_N, nuc_Z, nuc_lnlam3, nuc_start, nuc_h2, st_E,
     metal_e = 0.0
     N_H_total = 0.0
     N_He_total = 0.0
+    M = np.zeros((8, 6))
 
     for i in range(nuc_N.size):
         N_i = nuc_N[i]
@@ -197,7 +202,7 @@ def _point(y, lnrho, lnT, el, nuc_N, nuc_Z, nuc_lnlam3, nuc_start, nuc_h2, st_E,
         if nuc_h2[i] == 1:
             # hydrogen: H, H+ and H2 (quadratic balance, solved in logs)
             f1_j, fn1_j, fT1_j = _coul(W, 1, dln_ne_dzeta)
-            ph0, ph1, ph2 = _planck_larkin(st_E[s0 + 1] / kT)
+            ph0, ph1, ph2 = PLc[s0, 0], PLc[s0, 1], PLc[s0, 2]
             pl_j = (ph0, 0.0, 0.0, 0.0, 0.0, 0.0, ph1)
             dpl_j = (ph1, 0.0, 0.0, 0.0, 0.0, 0.0, ph2)
             L0 = J.sub(J.add(J.const(st_lng[s0]), pl_j), J.scale(Pi_j, st_v[s0]))
@@ -252,63 +257,21 @@ def _point(y, lnrho, lnT, el, nuc_N, nuc_Z, nuc_lnlam3, nuc_start, nuc_h2, st_E,
             diag[3] += 2.0 * Nm[0]
             N_H_total += N_i
             continue
-        # any other nuclide: stages 0..Z, weights e^L_j normalised (softmax)
-        # Planck-Larkin sums of the bound electrons each stage still holds: Phi_j = sum_{k >= j} phi(x_k)
-        W[Z, 14] = 0.0
-        W[Z, 15] = 0.0
-        W[Z, 16] = 0.0
-        for j in range(Z - 1, -1, -1):
-            a0, a1, a2 = _planck_larkin((st_E[s0 + j + 1] - st_E[s0 + j]) / kT)
-            W[j, 14] = W[j + 1, 14] + a0
-            W[j, 15] = W[j + 1, 15] + a1
-            W[j, 16] = W[j + 1, 16] + a2
-        Lmax = -1e300
-        for j in range(Z + 1):
-            fz = W[j, 0] if j > 0 else 0.0
-            Lj = st_lng[s0 + j] + W[j, 14] - st_E[s0 + j] / kT - j * etac - fz - Pi * st_v[s0 + j]
-            W[j, 6] = Lj
-            if Lj > Lmax:
-                Lmax = Lj
-        lse = J.const(0.0)
-        first = True
-        for j in range(Z + 1):
-            if W[j, 6] < Lmax - _SKIP and j != 1:
-                continue
-            Lj_j = _stage_L(j, s0, st_lng, st_E, st_v, inv_kT_j, etac_j, Pi_j, W, dln_ne_dzeta)
-            W[j, 7], W[j, 8], W[j, 9], W[j, 10], W[j, 11], W[j, 12], W[j, 13] = Lj_j
-            if first:
-                lse = Lj_j
-                first = False
-            else:
-                lse = J.logaddexp(lse, Lj_j)
-        for j in range(Z + 1):
-            if W[j, 6] < Lmax - _SKIP and j != 1:
-                continue
-            Lj_j = (W[j, 7], W[j, 8], W[j, 9], W[j, 10], W[j, 11], W[j, 12], W[j, 13])
-            lnNj = J.shift(J.sub(Lj_j, lse), lnN_i)
-            Nj = J.jexp(lnNj)
-            Nh = J.add(Nh, Nj)
-            Str = J.add(Str, J.mul(Nj, J.sub(J.const(2.5), J.add(lnNj, lrl))))
-            pl_j = (W[j, 14], 0.0, 0.0, 0.0, 0.0, 0.0, W[j, 15])
-            dpl_j = (W[j, 15], 0.0, 0.0, 0.0, 0.0, 0.0, W[j, 16])
-            Sint = J.add(Sint, J.mul(Nj, J.add(J.shift(pl_j, st_lng[s0 + j]), dpl_j)))
-            Eint = J.add(Eint, J.mul(Nj, J.add(J.const(st_E[s0 + j]), J.mul(kT_j, dpl_j))))
-            if st_v[s0 + j] > 0.0:
-                B = J.add(B, J.scale(Nj, st_v[s0 + j]))
-            if j > 0:
-                Ne = J.add(Ne, J.scale(Nj, float(j)))
-                fj_j, fn_j, fT_j = _coul(W, j, dln_ne_dzeta)
-                C = J.add(C, J.mul(Nj, fn_j))
-                Ec = J.sub(Ec, J.mul(J.mul(Nj, kT_j), fT_j))
-                Sc = J.sub(Sc, J.mul(Nj, J.add(fj_j, fT_j)))
-                if Z == 2:
-                    diag[1] += Nj[0]
-                    if j == 2:
-                        diag[2] += Nj[0]
-                elif Z > 2:
-                    metal_e += j * Nj[0]
+        # any other nuclide: stages 0..Z, weights e^L_j normalised (softmax), summed in closed form
         if Z == 2:
             N_He_total += N_i
+        metal_e += _stages(Z, s0, N_i, lnN_i, lrl, kT, etac, Pi, st_E, st_lng, st_v, W, PLc, M, diag)
+        Nh = J.add(Nh, J.const(N_i))
+
+    # the stage sums of every nuclide but hydrogen, as jets (see _stages)
+    Ne = J.add(Ne, _moment_jet(M, 0, el, Pi_j))
+    B = J.add(B, _moment_jet(M, 1, el, Pi_j))
+    C = J.add(C, _moment_jet(M, 2, el, Pi_j))
+    Eint = J.add(Eint, _moment_jet(M, 3, el, Pi_j))
+    Ec = J.add(Ec, _moment_jet(M, 4, el, Pi_j))
+    Sc = J.add(Sc, _moment_jet(M, 5, el, Pi_j))
+    Sint = J.add(Sint, _moment_jet(M, 6, el, Pi_j))
+    Str = J.add(Str, _moment_jet(M, 7, el, Pi_j))
 
     # the four conditions
     R1 = J.sub(J.add(J.jlog(Ne), lnrho_j), J.add(J.seed(y[0], 1), lnphi_j))
@@ -341,16 +304,159 @@ def _point(y, lnrho, lnT, el, nuc_N, nuc_Z, nuc_lnlam3, nuc_start, nuc_h2, st_E,
 
 
 @njit(cache=True, error_model="numpy")
-def _stage_L(j, s0, st_lng, st_E, st_v, inv_kT_j, etac_j, Pi_j, W, dln_ne_dzeta):
-    """ln of the unnormalised weight of stage j: ln g_j - E_j/kT - j (eta' + c) - f_j - Pi v_j."""
-    Lj = J.sub((st_lng[s0 + j] + W[j, 14], 0.0, 0.0, 0.0, 0.0, 0.0, W[j, 15]), J.scale(inv_kT_j, st_E[s0 + j]))
-    if j > 0:
-        Lj = J.sub(Lj, J.scale(etac_j, float(j)))
-        f = _coul(W, j, dln_ne_dzeta)[0]
-        Lj = J.sub(Lj, f)
-    if st_v[s0 + j] > 0.0:
-        Lj = J.sub(Lj, J.scale(Pi_j, st_v[s0 + j]))
-    return Lj
+def _stage_cache(n):
+    """Scratch for :func:`_fill_planck_larkin` (n stages), marked empty (no ln T is NaN)."""
+    PLc = np.empty((n, 4))
+    PLc[0, 3] = np.nan
+    return PLc
+
+
+@njit(cache=True, error_model="numpy")
+def _fill_planck_larkin(PLc, lnT, nuc_N, nuc_Z, nuc_start, st_E):
+    """PLc[s] = the Planck-Larkin sum Phi_j = sum_{k >= j} phi(x_k) of the bound electrons stage s still holds,
+    and its first two ln T derivatives; PLc[0, 3] = the ln T they are for (they depend on T alone, so a
+    point's Newton iterations compute them once)."""
+    kT = _K * math.exp(lnT)
+    for i in range(nuc_N.size):
+        Z = nuc_Z[i]
+        s0 = nuc_start[i]
+        PLc[s0 + Z, 0] = 0.0
+        PLc[s0 + Z, 1] = 0.0
+        PLc[s0 + Z, 2] = 0.0
+        for j in range(Z - 1, -1, -1):
+            a0, a1, a2 = _planck_larkin((st_E[s0 + j + 1] - st_E[s0 + j]) / kT)
+            PLc[s0 + j, 0] = PLc[s0 + j + 1, 0] + a0
+            PLc[s0 + j, 1] = PLc[s0 + j + 1, 1] + a1
+            PLc[s0 + j, 2] = PLc[s0 + j + 1, 2] + a2
+    PLc[0, 3] = lnT
+
+
+#: the stage quantities summed by _stages (rows of M): free electrons, bound volume, the Coulomb part of the
+#: electron potential, internal energy, Coulomb energy, Coulomb entropy, internal entropy, translational entropy
+_MOMENTS = 8
+
+
+@njit(cache=True, error_model="numpy")
+def _stages(Z, s0, N_i, lnN_i, lrl, kT, etac, Pi, st_E, st_lng, st_v, W, PLc, M, diag):
+    """Add the stages of nuclide i (charge Z > 1, or Z = 1 without H2) to the moment sums M; returns its free electrons.
+
+    ln N_j = ln N_i + L_j - lse, L_j = ln g_j + Phi_j - E_j/kT - j (eta' + c) - f_j - Pi v_j (a softmax over
+    the stages). Every L_j moves with the seeds along four directions only: ln T, the electron potential
+    eta' + c, ln n_e (through f_j) and Pi:
+        dL_j = alpha_j dlnT - j d(eta' + c) - f'_j dln n_e - v_j dPi,   alpha_j = Phi'_j + E_j/kT - f_T,j
+    so d ln N_j is the same with each coefficient less its mean over the stages (weights N_j / N_i), and a
+    sum Q = sum_j N_j q_j has dQ = sum_j N_j q_j d ln N_j + sum_j N_j dq_j. For each Q, M[k] collects
+    [sum N q, sum N q (alpha - mean), -sum N q (j - mean), -sum N q (f' - mean) + sum N q_F, -sum N q (v - mean),
+    the ln T part of sum N dq and the part along ln(rho lambda^3 / phi)]: the derivative along each direction
+    (:func:`_moment_jet` turns them into jets). This costs a few multiplications per stage instead of a jet
+    product per stage and quantity; the result is the same sum (tested against a direct jet evaluation).
+    """
+    Lmax = -1e300
+    for j in range(Z + 1):
+        fz = W[j, 0] if j > 0 else 0.0
+        Lj = st_lng[s0 + j] + PLc[s0 + j, 0] - st_E[s0 + j] / kT - j * etac - fz - Pi * st_v[s0 + j]
+        W[j, 6] = Lj
+        if Lj > Lmax:
+            Lmax = Lj
+    tot = 0.0
+    for j in range(Z + 1):
+        if W[j, 6] < Lmax - _SKIP and j != 1:
+            W[j, 7] = 0.0
+            continue
+        W[j, 7] = math.exp(W[j, 6] - Lmax)
+        tot += W[j, 7]
+    lse = Lmax + math.log(tot)
+    # means of the coefficients over the stages
+    ma = 0.0
+    mb = 0.0
+    mf = 0.0
+    mv = 0.0
+    for j in range(Z + 1):
+        p = W[j, 7] / tot
+        W[j, 7] = p
+        if p == 0.0:
+            continue
+        fc1 = W[j, 1] if j > 0 else 0.0
+        fc2 = W[j, 2] if j > 0 else 0.0
+        alpha = PLc[s0 + j, 1] + st_E[s0 + j] / kT - fc2
+        W[j, 8] = alpha
+        ma += p * alpha
+        mb += p * j
+        mf += p * fc1
+        mv += p * st_v[s0 + j]
+    ne = 0.0
+    for j in range(Z + 1):
+        p = W[j, 7]
+        if p == 0.0:
+            continue
+        Nj = N_i * p
+        lnNj = lnN_i + W[j, 6] - lse
+        v = st_v[s0 + j]
+        if j > 0:
+            fc0 = W[j, 0]
+            fc1 = W[j, 1]
+            fc2 = W[j, 2]
+            fc3 = W[j, 3]
+            fc4 = W[j, 4]
+            fc5 = W[j, 5]
+        else:
+            fc0 = fc1 = fc2 = fc3 = fc4 = fc5 = 0.0
+        da = W[j, 8] - ma
+        db = j - mb
+        df = fc1 - mf
+        dv = v - mv
+        PL = PLc[s0 + j, 0]
+        PLT = PLc[s0 + j, 1]
+        PLTT = PLc[s0 + j, 2]
+        # (q, q_T, q_F, q_L) of each summed quantity
+        _acc(M, 0, Nj, float(j), 0.0, 0.0, 0.0, da, db, df, dv)
+        _acc(M, 1, Nj, v, 0.0, 0.0, 0.0, da, db, df, dv)
+        _acc(M, 2, Nj, fc1, fc4, fc3, 0.0, da, db, df, dv)
+        _acc(M, 3, Nj, st_E[s0 + j] + kT * PLT, kT * (PLT + PLTT), 0.0, 0.0, da, db, df, dv)
+        _acc(M, 4, Nj, -kT * fc2, -kT * (fc2 + fc5), -kT * fc4, 0.0, da, db, df, dv)
+        _acc(M, 5, Nj, -(fc0 + fc2), -(fc2 + fc5), -(fc1 + fc4), 0.0, da, db, df, dv)
+        _acc(M, 6, Nj, PL + st_lng[s0 + j] + PLT, PLT + PLTT, 0.0, 0.0, da, db, df, dv)
+        # S_trans: q = 5/2 - ln N_j - lrl; its own d ln N_j sums to zero (sum N_j is fixed)
+        _acc(M, 7, Nj, 2.5 - lnNj - lrl[0], 0.0, 0.0, -1.0, da, db, df, dv)
+        if j > 0:
+            ne += j * Nj
+            if Z == 2:
+                diag[1] += Nj
+                if j == 2:
+                    diag[2] += Nj
+    return ne if Z > 2 else 0.0
+
+
+@njit(cache=True, inline="always", error_model="numpy")
+def _acc(M, k, Nj, q, qT, qF, qL, da, db, df, dv):
+    Nq = Nj * q
+    M[k, 0] += Nq
+    M[k, 1] += Nq * da + Nj * qT
+    M[k, 2] -= Nq * db
+    M[k, 3] += Nj * qF - Nq * df
+    M[k, 4] -= Nq * dv
+    M[k, 5] += Nj * qL
+
+
+@njit(cache=True, error_model="numpy")
+def _moment_jet(M, k, el, Pi_j):
+    """The jet of the stage sum k from its moments: d = A_T dlnT + A_E d(eta' + c) + A_F dln n_e + A_P dPi + A_L dlrl.
+
+    d(eta' + c) = (eta'_1, 0, 1, 0, 0, eta'_T), dln n_e = (1, -1, 0, 0, 0, 0) (ln n_e = y1 - u), dlrl = (0, 1, 0, 0, 1, -1.5)
+    (lrl = ln(rho lambda^3 / phi)), dPi from its jet.
+    """
+    AT = M[k, 1]
+    AE = M[k, 2]
+    AF = M[k, 3]
+    AP = M[k, 4]
+    AL = M[k, 5]
+    return (M[k, 0],
+            AE * el[1] + AF + AP * Pi_j[1],
+            -AF + AP * Pi_j[2] + AL,
+            AE + AP * Pi_j[3],
+            AP * Pi_j[4],
+            AP * Pi_j[5] + AL,
+            AT + AE * el[2] + AP * Pi_j[6] - 1.5 * AL)
 
 
 @njit(cache=True, error_model="numpy")
@@ -507,8 +613,9 @@ def _newton_step(y, lnrho, lnT, el, sp, h2tab, res):
     for p in prange(y.shape[0]):
         diag = np.empty(10)
         L = np.empty((zmax + 1, 17))
+        PLc = _stage_cache(st_E.size)
         out = _point(y[p], lnrho[p], lnT[p], el[p], nuc_N, nuc_Z, nuc_lnlam3, nuc_start, nuc_h2, st_E,
-                     st_lng, st_v, h2_v, h2_D0, coul_on, tx, ty, t1, t2, diag, L)
+                     st_lng, st_v, h2_v, h2_D0, coul_on, tx, ty, t1, t2, diag, L, PLc)
         Rs = (out[0], out[1], out[2], out[3])
         A = np.empty((4, 4))
         b = np.empty(4)
@@ -526,7 +633,7 @@ def _newton_step(y, lnrho, lnT, el, sp, h2tab, res):
             _trial(y[p], d, lam, yt)
             _shifted_electrons(el[p], yt[0] - y[p, 0], elt)
             o = _point(yt, lnrho[p], lnT[p], elt, nuc_N, nuc_Z, nuc_lnlam3, nuc_start, nuc_h2, st_E,
-                       st_lng, st_v, h2_v, h2_D0, coul_on, tx, ty, t1, t2, diag, L)
+                       st_lng, st_v, h2_v, h2_D0, coul_on, tx, ty, t1, t2, diag, L, PLc)
             m = _merit((o[0], o[1], o[2], o[3]))
             if m < (1.0 - 1e-4 * lam) * m0 or m0 < 1e-20:
                 break
@@ -547,7 +654,7 @@ def _starts(lnrho, lnT, sp, h2tab, y):
 
 
 @njit(cache=True, error_model="numpy")
-def _final_one(y, lnrho, lnT, el, sp, h2tab, diag, out, W):
+def _final_one(y, lnrho, lnT, el, sp, h2tab, diag, out, W, PLc):
     """P, E, S and their total derivatives in ln rho and ln T at the root y (implicit differentiation).
 
     out = [P, dP/dlnrho, dP/dlnT, E, dE/dlnrho, dE/dlnT, S, dS/dlnrho, dS/dlnT, max |R|]
@@ -555,7 +662,7 @@ def _final_one(y, lnrho, lnT, el, sp, h2tab, diag, out, W):
     nuc_N, nuc_Z, nuc_lnlam3, nuc_start, nuc_h2, st_E, st_lng, st_v, h2_v, h2_D0, coul_on = sp
     tx, ty, t1, t2 = h2tab
     R1, R2, R3, R4, P, E, S = _point(y, lnrho, lnT, el, nuc_N, nuc_Z, nuc_lnlam3, nuc_start,
-                                     nuc_h2, st_E, st_lng, st_v, h2_v, h2_D0, coul_on, tx, ty, t1, t2, diag, W)
+                                     nuc_h2, st_E, st_lng, st_v, h2_v, h2_D0, coul_on, tx, ty, t1, t2, diag, W, PLc)
     Rs = (R1, R2, R3, R4)
     A = np.empty((4, 4))
     b = np.empty(4)
@@ -578,7 +685,7 @@ def _final(y, lnrho, lnT, el, sp, h2tab, diag, out):
     zmax = _zmax(sp[1])
     for p in prange(y.shape[0]):
         W = np.empty((zmax + 1, 17))
-        _final_one(y[p], lnrho[p], lnT[p], el[p], sp, h2tab, diag[p], out[p], W)
+        _final_one(y[p], lnrho[p], lnT[p], el[p], sp, h2tab, diag[p], out[p], W, _stage_cache(sp[5].size))
 
 
 @njit(cache=True, error_model="numpy")
@@ -589,7 +696,7 @@ def _electrons(y1, T, classical, etab, out):
 
 
 @njit(cache=True, error_model="numpy")
-def _newton_point(y, lnrho, lnT, classical, etab, sp, h2tab, W, diag, el):
+def _newton_point(y, lnrho, lnT, classical, etab, sp, h2tab, W, diag, el, PLc):
     """Damped Newton from y (modified in place) at one point, the electron gas evaluated every step.
 
     Returns the number of iterations, or -1 if it did not converge (or the electrons left the table).
@@ -603,11 +710,12 @@ def _newton_point(y, lnrho, lnT, classical, etab, sp, h2tab, W, diag, el):
     elt = np.empty(12)
     best = 1e300
     stall = 0
+    misses = 0
     for it in range(_MAX_ITER):
         if not _electrons(y[0], T, classical, etab, el):
             return -1
         o = _point(y, lnrho, lnT, el, nuc_N, nuc_Z, nuc_lnlam3, nuc_start, nuc_h2, st_E, st_lng, st_v,
-                   h2_v, h2_D0, coul_on, tx, ty, t1, t2, diag, W)
+                   h2_v, h2_D0, coul_on, tx, ty, t1, t2, diag, W, PLc)
         Rs = (o[0], o[1], o[2], o[3])
         _jacobian(Rs, A, b, 0)
         res = _size(b, y[2])
@@ -626,15 +734,22 @@ def _newton_point(y, lnrho, lnT, classical, etab, sp, h2tab, W, diag, el):
         _cap(d, y[2])
         m0 = _merit(Rs)
         lam = 1.0
+        found = False
         for _ in range(8):
             _trial(y, d, lam, yt)
             if _electrons(yt[0], T, classical, etab, elt):
                 ot = _point(yt, lnrho, lnT, elt, nuc_N, nuc_Z, nuc_lnlam3, nuc_start, nuc_h2, st_E, st_lng,
-                            st_v, h2_v, h2_D0, coul_on, tx, ty, t1, t2, diag, W)
+                            st_v, h2_v, h2_D0, coul_on, tx, ty, t1, t2, diag, W, PLc)
                 m = _merit((ot[0], ot[1], ot[2], ot[3]))
                 if m < (1.0 - 1e-4 * lam) * m0:
+                    found = True
                     break
             lam *= 0.5
+        # three line searches in a row without any descent: this start leads nowhere (the other start,
+        # or the continuation, takes over); giving up early keeps a failing start from costing 30 x 9 steps
+        misses = 0 if found else misses + 1
+        if misses >= 3:
+            return -1
         for q in range(4):
             y[q] = yt[q]
     return -1
@@ -659,7 +774,7 @@ def _full_start(lnrho, lnT, nuc_N, nuc_Z, coul_on, y):
 
 
 @njit(cache=True, error_model="numpy")
-def _continue_down_in_T(y, lnrho, lnT, classical, etab, sp, h2tab, W, diag, el):
+def _continue_down_in_T(y, lnrho, lnT, classical, etab, sp, h2tab, W, diag, el, PLc):
     """Follow the root from 100 T (full ionization) down to T in small steps; y gets the root.
 
     For the few points where Newton fails from both starts (ill-conditioned corners: strongly coupled
@@ -670,7 +785,7 @@ def _continue_down_in_T(y, lnrho, lnT, classical, etab, sp, h2tab, W, diag, el):
     x0 = lnT + 2.0 * math.log(10.0)
     x = x0
     step = (x0 - lnT) / 40.0
-    it = _newton_point(yk, lnrho, x, classical, etab, sp, h2tab, W, diag, el)
+    it = _newton_point(yk, lnrho, x, classical, etab, sp, h2tab, W, diag, el, PLc)
     if it < 0:
         return -1
     ytry = np.empty(4)
@@ -682,7 +797,7 @@ def _continue_down_in_T(y, lnrho, lnT, classical, etab, sp, h2tab, W, diag, el):
         xn = max(lnT, x - step)
         for q in range(4):
             ytry[q] = yk[q]
-        it = _newton_point(ytry, lnrho, xn, classical, etab, sp, h2tab, W, diag, el)
+        it = _newton_point(ytry, lnrho, xn, classical, etab, sp, h2tab, W, diag, el, PLc)
         if it < 0:
             step *= 0.5
             if step < 1e-4:
@@ -711,6 +826,7 @@ def _solve_points(lnrho, lnT, classical, etab, sp, h2tab, Y, status):
     zmax = _zmax(nuc_Z)
     for p in prange(lnrho.size):
         W = np.empty((zmax + 1, 17))
+        PLc = _stage_cache(st_E.size)
         L1 = np.empty(zmax + 1)
         diag = np.empty(10)
         el = np.empty(12)
@@ -718,14 +834,14 @@ def _solve_points(lnrho, lnT, classical, etab, sp, h2tab, Y, status):
         yB = np.empty(4)
         T = math.exp(lnT[p])
         _full_start(lnrho[p], lnT[p], nuc_N, nuc_Z, coul_on, yA)
-        itA = _newton_point(yA, lnrho[p], lnT[p], classical, etab, sp, h2tab, W, diag, el)
+        itA = _newton_point(yA, lnrho[p], lnT[p], classical, etab, sp, h2tab, W, diag, el, PLc)
         if itA == -1 and not _electrons(yA[0], T, classical, etab, el):
             status[p] = -2
             continue
         FA = 0.0
         if itA >= 0:
             o = _point(yA, lnrho[p], lnT[p], el, nuc_N, nuc_Z, nuc_lnlam3, nuc_start, nuc_h2, st_E, st_lng,
-                       st_v, h2_v, h2_D0, coul_on, tx, ty, t1, t2, diag, W)
+                       st_v, h2_v, h2_D0, coul_on, tx, ty, t1, t2, diag, W, PLc)
             FA = o[5][0] - T * o[6][0]
         chosen = 0 if itA == 0 else (1 if itA > 0 else -1)
         for q in range(4):
@@ -733,17 +849,17 @@ def _solve_points(lnrho, lnT, classical, etab, sp, h2tab, Y, status):
         if T < 3e5 or itA < 0:
             _ideal_saha_start(lnrho[p], lnT[p], nuc_N, nuc_Z, nuc_start, nuc_h2, st_E, st_lng, st_v, h2_v,
                               h2_D0, tx, ty, t1, t2, L1, yB)
-            itB = _newton_point(yB, lnrho[p], lnT[p], classical, etab, sp, h2tab, W, diag, el)
+            itB = _newton_point(yB, lnrho[p], lnT[p], classical, etab, sp, h2tab, W, diag, el, PLc)
             if itB >= 0:
                 o = _point(yB, lnrho[p], lnT[p], el, nuc_N, nuc_Z, nuc_lnlam3, nuc_start, nuc_h2, st_E,
-                           st_lng, st_v, h2_v, h2_D0, coul_on, tx, ty, t1, t2, diag, W)
+                           st_lng, st_v, h2_v, h2_D0, coul_on, tx, ty, t1, t2, diag, W, PLc)
                 FB = o[5][0] - T * o[6][0]
                 if itA < 0 or FB < FA - 1e-12 * abs(FA):
                     chosen = 2
                     for q in range(4):
                         Y[p, q] = yB[q]
         if chosen == -1:
-            itC = _continue_down_in_T(yB, lnrho[p], lnT[p], classical, etab, sp, h2tab, W, diag, el)
+            itC = _continue_down_in_T(yB, lnrho[p], lnT[p], classical, etab, sp, h2tab, W, diag, el, PLc)
             if itC >= 0:
                 chosen = 4
                 for q in range(4):
@@ -763,7 +879,7 @@ def _final_points(Y, lnrho, lnT, classical, etab, sp, h2tab, diag, out, elo):
             for q in range(10):
                 out[p, q] = np.nan
             continue
-        _final_one(Y[p], lnrho[p], lnT[p], elo[p], sp, h2tab, diag[p], out[p], W)
+        _final_one(Y[p], lnrho[p], lnT[p], elo[p], sp, h2tab, diag[p], out[p], W, _stage_cache(sp[5].size))
 
 
 def _electron_data(n, T, electrons: str, pairs: bool) -> np.ndarray:
