@@ -233,6 +233,22 @@ def test_h2_half_dissociated_where_an_independent_evaluation_says():
     assert T_code == pytest.approx(T_ind, rel=2e-3)
 
 
+def test_h2_dissociation_at_one_atmosphere_matches_a_published_value():
+    """Hydrogen at 3000 K and 1 atm is dissociated to 7.85 % (degree of dissociation alpha: of the H2 molecules
+    of the cold gas, the share split into atoms; Greenwood & Earnshaw, Chemistry of the Elements, 2nd ed. 1997,
+    as quoted in reference works). The fraction of H nuclei in H2 is (1 - alpha) / (1 - alpha + alpha) =
+    1 - alpha. The density is found so that the code's own P is 1 atm. Within 15 % of the published value."""
+    comp = COMPOSITIONS["hydrogen"]
+    T, P_atm = 3000.0, 1.01325e6
+    rho = P_atm / (const.k_B * T) * 2.0 * 1.00782503 * const.m_u         # all H2, ideal: a start
+    for _ in range(40):
+        s = ph.evaluate(rho, T, comp, ionization="chemical")
+        rho *= P_atm / float(s.P)
+    assert float(s.P) == pytest.approx(P_atm, rel=1e-10)
+    alpha = 1.0 - float(s.h2_fraction)
+    assert alpha == pytest.approx(0.0785, rel=0.15)
+
+
 def test_h2_gone_once_kT_exceeds_its_binding_even_in_dense_matter():
     """kT = 26 eV >> D0 = 4.5 eV at 3e5 K: with Planck-Larkin weights for its levels, H2 is a trace
     (< 1e-3 of H) at 1 g cm^-3 and gone at low density; the plain bound-level sum (~2700 levels) kept
