@@ -283,9 +283,9 @@ def about_physics() -> list:
           "(experimental: stiff in the pressure-ionization "
           "band, where it returns two coexisting phases across the van der Waals loops of its isotherms, "
           "and leaves some points without a root (shown grey); a map takes seconds to tens of seconds, and "
-          "the first one of a composition builds its two-phase lines; no crystal, no screening or "
-          "exchange-correlation yet). With it the map can shade the fraction of H in H₂ and the share of free "
-          "electrons from metals, and draws the H₂ half-dissociation line and the edges of the two-phase "
+          "the first one of a composition builds its two-phase lines; electron exchange-correlation is in, "
+          "but no crystal, quantum ions or screening yet). With it the map can shade the fraction of H in H₂ "
+          "and the share of free electrons from metals, and draws the H₂ half-dissociation line and the edges of the two-phase "
           "regions; see the README."),
         P("Results are for exploration and checks. For a publication, compare against a full tabulated "
           "equation of state.", className="strong"),

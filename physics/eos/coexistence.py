@@ -43,7 +43,7 @@ __all__ = ["LOG_RHO_RANGE", "T_MAX", "binodal", "apply_coexistence"]
 #: the densities scanned for loops, log10 g cm^-3 (the pressure-ionization band of H, He and the C/O K shells)
 LOG_RHO_RANGE = (-1.5, 4.5)
 #: no isotherm above this temperature is scanned (K): the loops close well below it (measured: H near
-#: 9e4 K, the solar-like mix's He loop near 2e5 K, C/O loops at 1e5-3e5 K and none at 1e6, 2e6, 4e6 K)
+#: 5.3e4 K, C/O's K-shell loops at 3e4-3e5 K and none at 1e6, 2e6 K)
 T_MAX = 1.0e6
 _MAX_LOOPS = 3
 _NEWTON = 30
@@ -242,6 +242,15 @@ def _construct(T, comp, opts):
         return res
     rows_l, cols_l = np.array(loops_rows), np.array(loops_cols)
     ya, yb, Pc, good = _polish(np.array(xa), np.array(xb), T[rows_l], comp, opts)
+    # two windows of one isotherm can overlap and find the same loop: it is one tie line, kept once; the
+    # loops of an isotherm then fill its columns in order of density (neighbouring nodes line up)
+    for k in range(rows_l.size):
+        same = (rows_l[:k] == rows_l[k]) & good[:k] & (np.abs(np.log(ya[:k] / ya[k])) < 1e-6)
+        if good[k] and np.any(same):
+            good[k] = False
+    for i in np.unique(rows_l):
+        mine = np.flatnonzero((rows_l == i) & good)
+        cols_l[mine[np.argsort(ya[mine])]] = np.arange(mine.size)
     res[0, rows_l[good], cols_l[good]] = ya[good]
     res[1, rows_l[good], cols_l[good]] = yb[good]
     res[2, rows_l[good], cols_l[good]] = Pc[good]
@@ -270,14 +279,16 @@ def _polish(xa, xb, Tl, comp, opts):
         Pa, Pb, ga, gb = s.P[:n], s.P[n:], g[:n], g[n:]
         dPa, dPb = s.P_lnrho[:n], s.P_lnrho[n:]                 # dP / d ln rho at fixed T
         scale = Pa / rr[:n]
-        R1 = np.log(Pa) - np.log(Pb)
+        with np.errstate(invalid="ignore", divide="ignore"):     # P <= 0 at a trial point: no root (below)
+            R1 = np.log(Pa) - np.log(Pb)
         R2 = (ga - gb) / scale
         # dg / d ln rho = (1/rho) dP / d ln rho at fixed T (Gibbs-Duhem)
         J11, J12 = dPa / Pa, -dPb / Pb
         J21, J22 = dPa / rr[:n] / scale, -dPb / rr[n:] / scale
         det = J11 * J22 - J12 * J21
-        d0 = (R1 * J22 - R2 * J12) / det
-        d1 = (J11 * R2 - J21 * R1) / det
+        with np.errstate(invalid="ignore", divide="ignore"):     # a singular step is no root (below)
+            d0 = (R1 * J22 - R2 * J12) / det
+            d1 = (J11 * R2 - J21 * R1) / det
         # converged: the residuals at rounding, or a stalled step with residuals already small
         small = (np.abs(R1) < 1e-11) & (np.abs(R2) < 1e-10)
         conv = ((np.abs(R1) < 1e-13) & (np.abs(R2) < 1e-12)) | (small & (np.maximum(np.abs(d0), np.abs(d1)) < 1e-13))

@@ -9,7 +9,9 @@ The Helmholtz free energy per gram is the sum of the terms of this package:
 
 - F_trans = sum_j N_j kT [ln(N_j lambda_j^3 / V_f) - 1]                   (ions, atoms, H2)
 - F_int   = sum_j N_j (E_j - kT ln g_j);  H2: N_H2 (-D0 - kT ln Z_int)      (:mod:`.species`)
-- F_e     = V_f f_e(N_e / V_f, T): the electron-positron gas (:mod:`thermoplane.physics.electron_table`)
+- F_e     = V_f f_e(N_e / V_f, T): the electron-positron gas (:mod:`thermoplane.physics.electron_table`),
+            with Coulomb on plus the electrons' exchange-correlation N_e kT f_xc(n_e', T)
+            (:mod:`.electron_xc`, the term the other options take from the dense-plasma part)
 - F_coul  = kT sum_j N_j f_j(ln n_e, ln T), n_e = N_e / V                   (:mod:`.coulomb_term`)
 - F_rad   = -a T^4 / (3 rho)                                                 (added in :mod:`.state`)
 
@@ -58,6 +60,7 @@ from ..composition import Composition
 from . import jets as J
 from .coulomb_term import ion_coulomb
 from .electron_kernel import classical_point, electron_arrays, electron_point
+from .electron_xc import electron_xc
 from .parallel import serialized
 from .hermite import quintic
 from .species import H2_TABLE, Species, species_for
@@ -689,10 +692,47 @@ def _final(y, lnrho, lnT, el, sp, h2tab, diag, out):
 
 
 @njit(cache=True, error_model="numpy")
-def _electrons(y1, T, classical, etab, out):
+def _add_xc(n, T, out):
+    """Add the electrons' exchange-correlation to the electron data out (layout of :func:`_point`).
+
+    F_xc = N_e kT f(ln n, ln T) per volume n kT f, with f and its partials from
+    :func:`thermoplane.physics.eos.electron_xc.electron_xc` (the same term as the default equation of state's
+    dense-plasma part): eta += f + f_n, P += n kT f_n, e += -n kT f_T, s += -n k (f + f_T), and their
+    derivatives in ln n and ln T from the same jet. Taken at the electrons' own density n = n_e'.
+    """
+    f, fn, fT, fnn, fnT, fTT = electron_xc(n, T, 1.0, 1.0)
+    nkT = n * _K * T
+    out[0] += f + fn
+    out[1] += fn + fnn
+    out[2] += fT + fnT
+    out[3] += nkT * fn
+    out[4] += nkT * (fn + fnn)
+    out[5] += nkT * (fn + fnT)
+    out[6] -= nkT * fT
+    out[7] -= nkT * (fT + fnT)
+    out[8] -= nkT * (fT + fTT)
+    out[9] -= n * _K * (f + fT)
+    out[10] -= n * _K * (f + fT + fn + fnT)
+    out[11] -= n * _K * (fT + fTT)
+
+
+@njit(cache=True, error_model="numpy")
+def _add_xc_many(n, T, out):
+    for p in range(n.size):
+        _add_xc(n[p], T[p], out[p])
+
+
+@njit(cache=True, error_model="numpy")
+def _electrons(y1, T, classical, etab, out, xc_on):
+    """The electron gas at n = e^y1 into out (with exchange-correlation if xc_on); False outside the table."""
+    n = math.exp(y1)
     if classical:
-        return classical_point(math.exp(y1), T, out)
-    return electron_point(math.exp(y1), T, etab, out)
+        ok = classical_point(n, T, out)
+    else:
+        ok = electron_point(n, T, etab, out)
+    if ok and xc_on:
+        _add_xc(n, T, out)
+    return ok
 
 
 @njit(cache=True, error_model="numpy")
@@ -712,7 +752,7 @@ def _newton_point(y, lnrho, lnT, classical, etab, sp, h2tab, W, diag, el, PLc):
     stall = 0
     misses = 0
     for it in range(_MAX_ITER):
-        if not _electrons(y[0], T, classical, etab, el):
+        if not _electrons(y[0], T, classical, etab, el, coul_on):
             return -1
         o = _point(y, lnrho, lnT, el, nuc_N, nuc_Z, nuc_lnlam3, nuc_start, nuc_h2, st_E, st_lng, st_v,
                    h2_v, h2_D0, coul_on, tx, ty, t1, t2, diag, W, PLc)
@@ -737,7 +777,7 @@ def _newton_point(y, lnrho, lnT, classical, etab, sp, h2tab, W, diag, el, PLc):
         found = False
         for _ in range(8):
             _trial(y, d, lam, yt)
-            if _electrons(yt[0], T, classical, etab, elt):
+            if _electrons(yt[0], T, classical, etab, elt, coul_on):
                 ot = _point(yt, lnrho, lnT, elt, nuc_N, nuc_Z, nuc_lnlam3, nuc_start, nuc_h2, st_E, st_lng,
                             st_v, h2_v, h2_D0, coul_on, tx, ty, t1, t2, diag, W, PLc)
                 m = _merit((ot[0], ot[1], ot[2], ot[3]))
@@ -835,7 +875,7 @@ def _solve_points(lnrho, lnT, classical, etab, sp, h2tab, Y, status):
         T = math.exp(lnT[p])
         _full_start(lnrho[p], lnT[p], nuc_N, nuc_Z, coul_on, yA)
         itA = _newton_point(yA, lnrho[p], lnT[p], classical, etab, sp, h2tab, W, diag, el, PLc)
-        if itA == -1 and not _electrons(yA[0], T, classical, etab, el):
+        if itA == -1 and not _electrons(yA[0], T, classical, etab, el, coul_on):
             status[p] = -2
             continue
         FA = 0.0
@@ -875,14 +915,14 @@ def _final_points(Y, lnrho, lnT, classical, etab, sp, h2tab, diag, out, elo):
     zmax = _zmax(nuc_Z)
     for p in prange(Y.shape[0]):
         W = np.empty((zmax + 1, 17))
-        if not _electrons(Y[p, 0], math.exp(lnT[p]), classical, etab, elo[p]):
+        if not _electrons(Y[p, 0], math.exp(lnT[p]), classical, etab, elo[p], coul_on):
             for q in range(10):
                 out[p, q] = np.nan
             continue
         _final_one(Y[p], lnrho[p], lnT[p], elo[p], sp, h2tab, diag[p], out[p], W, _stage_cache(sp[5].size))
 
 
-def _electron_data(n, T, electrons: str, pairs: bool) -> np.ndarray:
+def _electron_data(n, T, electrons: str, pairs: bool, xc: bool) -> np.ndarray:
     """The electron gas at density n (cm^-3) and T as the kernels read it (see :func:`_point`)."""
     from ..matter import classical_state, electrons_at
     k = _K
@@ -914,6 +954,8 @@ def _electron_data(n, T, electrons: str, pairs: bool) -> np.ndarray:
     out[:, 9] = S
     out[:, 10] = n * S_n
     out[:, 11] = T * S_Tn
+    if xc:
+        _add_xc_many(np.ascontiguousarray(n, dtype=float), np.ascontiguousarray(T, dtype=float), out)
     return out, g.n_minus, g.n_plus
 
 
@@ -978,7 +1020,7 @@ def _newton(y, lnrho, lnT, T, electrons, pairs, pk):
     ok = np.zeros(y.shape[0], dtype=bool)
     for _ in range(_MAX_ITER):
         ya = np.ascontiguousarray(y[active])
-        el = _electron_data(np.exp(ya[:, 0]), T[active], electrons, pairs)[0]
+        el = _electron_data(np.exp(ya[:, 0]), T[active], electrons, pairs, pk[10])[0]
         ra = np.empty(active.size)
         _newton_step(ya, lnrho[active], lnT[active], el, pk, H2_TABLE, ra)
         y[active] = ya
@@ -993,7 +1035,7 @@ def _newton(y, lnrho, lnT, T, electrons, pairs, pk):
 
 
 def _finish(y, lnrho, lnT, T, electrons, pairs, pk):
-    el, n_minus, n_plus = _electron_data(np.exp(y[:, 0]), T, electrons, pairs)
+    el, n_minus, n_plus = _electron_data(np.exp(y[:, 0]), T, electrons, pairs, pk[10])
     out = np.empty((y.shape[0], 10))
     diag = np.zeros((y.shape[0], 10))
     _final(y, lnrho, lnT, el, pk, H2_TABLE, diag, out)
@@ -1097,9 +1139,16 @@ def solve_equilibrium(rho, T, comp: Composition, electrons: str = "fermi", pairs
         Y[idx], out[idx], diag[idx], el[idx], n_minus[idx], n_plus[idx] = yh, oh, dh, eh, nmh, nph
         status[idx] = np.where(okh, 3, -1)
     phi = np.exp(-Y[:, 1])
+    eta = el[:, 0]
+    if coulomb:
+        # the reported degeneracy parameter is the ideal gas's (as in the other options): the
+        # exchange-correlation shift f + f_n of the electron potential is taken back out
+        from .electron_xc import electron_xc_free_energy
+        xc = electron_xc_free_energy(np.exp(Y[:, 0]), T)
+        eta = np.where(np.isfinite(eta), eta - (xc[0] + xc[1]), eta)
     return Equilibrium(P=out[:, 0], P_lnrho=out[:, 1], P_lnT=out[:, 2], E=out[:, 3], E_lnrho=out[:, 4],
                        E_lnT=out[:, 5], S=out[:, 6], S_lnrho=out[:, 7], S_lnT=out[:, 8], residual=out[:, 9],
-                       eta=el[:, 0], n_minus=n_minus * phi, n_plus=n_plus * phi, n_e=np.exp(Y[:, 0]) * phi,
+                       eta=eta, n_minus=n_minus * phi, n_plus=n_plus * phi, n_e=np.exp(Y[:, 0]) * phi,
                        ion_H=diag[:, 0], ion_He1=diag[:, 1], ion_He2=diag[:, 2], h2_fraction=diag[:, 3],
                        metal_electrons=diag[:, 4], P_ion=diag[:, 6], P_e=diag[:, 7], P_coul=diag[:, 8],
                        heavy=diag[:, 9], zeta=1.0 - phi, status=status)

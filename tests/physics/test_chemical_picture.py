@@ -260,10 +260,11 @@ def test_h2_gone_once_kT_exceeds_its_binding_even_in_dense_matter():
 
 def test_fully_ionized_limit_equals_the_fully_ionized_equation_of_state():
     """Hot or dense matter with no bound state left: P and S equal those of fully ionized matter with the
-    same physics: the Fermi-Dirac electron-positron gas, ideal ions and the liquid one-component-plasma
-    Coulomb term of every ion (physics.matter with ionization="full", physics.coulomb.coulomb_part,
-    radiation). The chemical picture does not have the dense-plasma terms of issue 12 yet, so the
-    default ``evaluate(ionization="full")`` (which has them) is not the reference here.
+    same physics: the Fermi-Dirac electron-positron gas, ideal ions, the liquid one-component-plasma
+    Coulomb term of every ion and the electrons' exchange-correlation (physics.matter with
+    ionization="full", physics.coulomb.coulomb_part, physics.eos.electron_xc, radiation). The chemical
+    picture does not have the crystal, the quantum ions or the screening yet, so the default
+    ``evaluate(ionization="full")`` (which has them) is not the reference here.
 
     E differs by a constant: the chemical picture counts energy from neutral atoms, so full ionization
     carries sum_i N_i E_Z(i) (every ionization energy of every nucleus), which the fully ionized option
@@ -276,13 +277,21 @@ def test_fully_ionized_limit_equals_the_fully_ionized_equation_of_state():
     rho = np.array([1e-3, 1.0, 1e3, 1e5, 1e6])
     T = np.array([1e8, 3e8, 3e8, 1e9, 3e8])
     a = ph.evaluate(rho, T, comp, ionization="chemical")
+    from thermoplane.physics.eos.electron_xc import electron_xc_free_energy
     ref = (matter(rho, T, comp, "fermi", "full", True).part + coulomb_part(rho, T, comp.X, comp.A, comp.Z)
            + radiation(rho, T, const.a_rad))
-    assert np.allclose(a.P, ref.P, rtol=1e-6)
-    assert np.allclose(a.S, ref.S, rtol=1e-6)
+    # exchange-correlation of the net electrons, F = N_e kT f(ln n_e, ln T): P = n_e kT f_n,
+    # E = -(n_e / rho) kT f_T, S = -(n_e / rho) k (f + f_T) per gram
+    n_e = rho * float(np.sum(comp.X / (comp.A * const.m_u) * comp.Z))
+    f, fn, fT = electron_xc_free_energy(n_e, T)[:3]
+    P_ref = ref.P + n_e * const.k_B * T * fn
+    E_ref = ref.E - n_e / rho * const.k_B * T * fT
+    S_ref = ref.S - n_e / rho * const.k_B * (f + fT)
+    assert np.allclose(a.P, P_ref, rtol=1e-6)
+    assert np.allclose(a.S, S_ref, rtol=1e-6)
     offset = 0.0
     for name, X in comp.to_dict().items():
         nuc = ph.NUCLIDES[name]
         chi = atomic_data.ionization_data(nuc.Z)[0]
         offset += X / (nuc.A * const.m_u) * float(np.sum(chi)) * const.eV
-    assert np.allclose(a.E - offset, ref.E, rtol=1e-6)
+    assert np.allclose(a.E - offset, E_ref, rtol=1e-6)

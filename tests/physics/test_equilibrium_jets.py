@@ -26,10 +26,10 @@ COMPOSITIONS = {
 
 
 def _outputs(y, x, pk, comp):
-    """The seven jets at unknowns y and x = (ln rho, ln T), the electron gas evaluated at y1."""
+    """The seven jets at unknowns y and x = (ln rho, ln T), the electron gas (with exchange-correlation) at y1."""
     nuc_N, nuc_Z, nuc_lnlam3, nuc_start, nuc_h2, st_E, st_lng, st_v, h2_v, h2_D0, coul_on = pk
     el = np.empty(12)
-    assert eq._electrons(y[0], math.exp(x[1]), False, eq._etab(), el)
+    assert eq._electrons(y[0], math.exp(x[1]), False, eq._etab(), el, coul_on)
     W = np.zeros((int(max(nuc_Z.max(), 1)) + 1, 17))
     o = eq._point(np.asarray(y, float), x[0], x[1], el, nuc_N, nuc_Z, nuc_lnlam3, nuc_start, nuc_h2, st_E,
                   st_lng, st_v, h2_v, h2_D0, coul_on, *eq.H2_TABLE, np.zeros(10), W, eq._stage_cache(st_E.size))
