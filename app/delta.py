@@ -109,9 +109,23 @@ def _structure(fig: dict) -> str:
     return _hash(json.dumps(shape, default=str))
 
 
+#: (template object, its hash): the map's plain figures all carry the same default-template dict
+#: (app.figures), a few thousand nested values that would be hashed again for every map
+_TEMPLATE_MEMO = [None, ""]
+
+
+def _part_hash(path, value) -> str:
+    if path == ("layout", "template") and isinstance(value, dict):
+        memo = _TEMPLATE_MEMO
+        if memo[0] is not value:
+            memo[:] = [value, _hash(value)]
+        return memo[1]
+    return _hash(value)
+
+
 def fingerprint(fig: dict) -> dict:
     """The structure hash and the per-property hashes of a figure dict (what the browser store keeps)."""
-    return {"shape": _structure(fig), "parts": [_hash(v) for _, v in _parts(fig)]}
+    return {"shape": _structure(fig), "parts": [_part_hash(p, v) for p, v in _parts(fig)]}
 
 
 def figure_update(fig, shown=None):
