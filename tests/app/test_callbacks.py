@@ -123,8 +123,12 @@ def test_quantity_colour_and_layers_cost_no_physics(monkeypatch):
 
 
 def test_a_composition_change_costs_one_plane_evaluation():
+    plane.clear_cache()                          # another test may have drawn this composition already
     before = plane.evaluation_count()
     map_cb.update_map(**controls(X=0.6, Y=0.38))
+    assert plane.evaluation_count() == before + 1
+    # and the map callback's answer (figure, lines, Patch) evaluates nothing more
+    map_cb.map_answer(None, None, ["comp-X.value"], **controls(X=0.6, Y=0.38))
     assert plane.evaluation_count() == before + 1
 
 
