@@ -172,7 +172,8 @@ def plane_figure(log_rho: np.ndarray, log_T: np.ndarray, z: np.ndarray, *, z_lab
                  categorical: list[tuple[str, str]] | None = None,
                  customdata: np.ndarray | None = None,
                  extra_traces=(), colorbar_ticks=None, colorbar_note: str = "", hover_value: bool = True,
-                 unphysical: np.ndarray | None = None, unphysical_label: str = "no physical value") -> go.Figure:
+                 unphysical: np.ndarray | None = None, unphysical_label: str = "no physical value",
+                 plain: bool = False) -> go.Figure | dict:
     """The density–temperature map: a shaded field with labelled lines over it.
 
     Parameters
@@ -208,6 +209,10 @@ def plane_figure(log_rho: np.ndarray, log_T: np.ndarray, z: np.ndarray, *, z_lab
     unphysical : 2-D bool array, optional
         Pixels with no physical value, drawn grey on top with a legend entry ``unphysical_label``
         and a hover box that says why.
+    plain : bool
+        Return the figure as a plain dict ``{"data": [...], "layout": {...}}`` of plotly.js properties
+        (numpy arrays kept), without building a plotly Figure: what the map callback sends
+        (app.delta), which would otherwise deep-copy the Figure back into such a dict.
     """
     font = 20 if presentation else 13
     line_scale = 2.0 if presentation else 1.0
@@ -318,7 +323,22 @@ def plane_figure(log_rho: np.ndarray, log_T: np.ndarray, z: np.ndarray, *, z_lab
     # Built once and not validated: plotly's validation of twenty traces and the layout took about 90 ms
     # per map (more than the physics of a 100 x 100 preview). Everything above is written in plotly.js's
     # own terms (colour scales as lists, titles as dicts); tests/app/test_figures.py validates the figures.
+    if plain:
+        # what a plotly Figure adds by itself: the default template (fonts, colour bar and hover styles)
+        return {"data": traces, "layout": {**layout, "template": _default_template()}}
     return go.Figure(data=traces, layout=layout, _validate=False)
+
+
+_TEMPLATES: dict = {}
+
+
+def _default_template() -> dict:
+    """plotly's default template as the plain dict a Figure puts under layout.template (kept per name)."""
+    import plotly.io as pio
+    name = pio.templates.default
+    if name not in _TEMPLATES:
+        _TEMPLATES[name] = go.Figure().to_plotly_json()["layout"].get("template", {})
+    return _TEMPLATES[name]
 
 
 def graph_config(filename: str = "thermoplane-map", scale: int = 3) -> dict:

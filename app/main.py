@@ -39,10 +39,12 @@ def warm_up() -> float:
     Called by ``thermoplane serve`` and by the WSGI module (once per server with ``gunicorn --preload``)."""
     import logging
     import time
-    from .callbacks.map import update_map
+    from .callbacks.map import map_answer
     from .state import DEFAULT_VIEW, view_to_controls
     t0 = time.perf_counter()
-    out = update_map(**view_to_controls({**DEFAULT_VIEW, "resolution": WARM_UP_RESOLUTION}))
+    # through the map callback's own body (plain figure, typed arrays, fingerprint), as a first visitor would
+    out = map_answer(None, None, ["comp-X.value"],
+                     **view_to_controls({**DEFAULT_VIEW, "resolution": WARM_UP_RESOLUTION}))
     if out["figure"] is dash.no_update:
         logging.getLogger(__name__).warning("warm-up map failed: %s", {k: v for k, v in out.items()
                                                                        if isinstance(v, str) and v})

@@ -58,9 +58,11 @@ window.dash_clientside = Object.assign({}, window.dash_clientside, {
        so the map draws at full resolution and the URL follows. boxToSlider: a box typed by hand moves its
        slider (not while that slider's hand is moving). Two callbacks, never a loop: each writes only what
        differs from what is there.
-       Flow control: one preview in flight at a time (a newer request for the same callback makes Dash
-       drop the answer of the one in flight, and nothing would be drawn until the hand stops). The newest
-       position waits in window.__tpDrag; mapDrawn (on each map that arrives) sends it at once. */
+       Flow control: at most PREVIEW_SLOTS previews in flight, each on its own server callback (the map's,
+       fed by the store "comp-drag", and a second one, "comp-drag-b"): a newer request for the same callback
+       makes Dash drop the answer of the one in flight, so one callback can have only one; with two, the
+       server computes the next preview while the page draws the last. The newest position waits in
+       window.__tpDrag; mapDrawn (on each new map the plot has drawn: plotly_afterplot) sends it at once. */
     sliderToBox: function (dx, dy, dz, sx, sy, sz, bx, by, bz, drag, zauto) {
       var nu = window.dash_clientside.no_update;
       var tp = window.dash_clientside.thermoplane;
@@ -79,7 +81,10 @@ window.dash_clientside = Object.assign({}, window.dash_clientside, {
           var typed = Number(boxes[i]);
           if (!(dragging && drag.key === k) && boxes[i] !== null && boxes[i] !== "" && isFinite(typed)
               && tp.same(Math.min(Math.max(typed, 0), 1), sliders[i])) { return out; }
-          st.latest = null; st.sent = null; st.inflight = 0;
+          var held = dragging || st.slots.length > 0;
+          st.latest = null; st.sent = null; st.slots = [];
+          /* a preview of the second callback still on its way is dropped: that callback is asked again */
+          if (held) { window.dash_clientside.set_props("comp-drag-b", {data: {drag: false, key: k, t: Date.now()}}); }
           if (!tp.same(tp.tidy(sliders[i]), boxes[i])) { out[i] = tp.tidy(sliders[i]); }
           /* with "Z = 1 − X − Y" ticked, Z goes with X or Y (as the rule on the server would write it), so
              the map is drawn once, for both */
@@ -99,40 +104,63 @@ window.dash_clientside = Object.assign({}, window.dash_clientside, {
           /* a drag_value equal to the slider's value is the release echoed (or a box typed), not a hand */
           if (tp.same(drags[i], sliders[i]) && !(dragging && drag.key === k)) { return out; }
           st.latest = {key: k, value: tp.tidy(drags[i])};
+          tp.watchMap();
           var next = tp.nextPreview();
-          if (next) { out[3] = next; }
+          if (next && next.store === "comp-drag") { out[3] = next.data; }
+          else if (next) { window.dash_clientside.set_props(next.store, {data: next.data}); }
           return out;
         }
       }
       return out;
     },
-    /* The drag's memory in this page: the newest position (latest), the one whose map is on its way
-       (sent) and since when (inflight, ms; 0 when none). */
+    /* The drag's memory in this page: the newest position (latest), the last one asked for (sent) and the
+       previews on their way (slots: {store, t}, oldest first). */
     dragState: function () {
-      if (!window.__tpDrag) { window.__tpDrag = {latest: null, sent: null, inflight: 0}; }
+      if (!window.__tpDrag) { window.__tpDrag = {latest: null, sent: null, slots: []}; }
       return window.__tpDrag;
     },
     same: function (a, b) { return typeof a === "number" && typeof b === "number" && Math.abs(a - b) < 1e-12; },
     tidy: function (v) { return Math.round(v * 1e6) / 1e6; },       /* 0.30000000000000004 -> 0.3 */
-    /* The comp-drag value that asks for the next preview, or null: nothing new, or a preview on its way
-       (an answer lost or refused frees the way after PREVIEW_WAIT ms). */
+    PREVIEW_SLOTS: 2,
+    PREVIEW_STORES: ["comp-drag", "comp-drag-b"],
+    /* {store, data} that asks for the next preview, or null: nothing new, or every slot busy (an answer
+       lost or refused frees its slot after PREVIEW_WAIT ms). */
     PREVIEW_WAIT: 3000,
     nextPreview: function () {
       var tp = window.dash_clientside.thermoplane, st = tp.dragState(), now = Date.now();
+      st.slots = st.slots.filter(function (s) { return now - s.t < tp.PREVIEW_WAIT; });
       var l = st.latest;
-      if (!l || (st.inflight && now - st.inflight < tp.PREVIEW_WAIT)) { return null; }
+      if (!l || st.slots.length >= tp.PREVIEW_SLOTS) { return null; }
       if (st.sent && st.sent.key === l.key && tp.same(st.sent.value, l.value)) { return null; }
-      st.sent = l; st.inflight = now;
-      return {drag: true, key: l.key, value: l.value, t: now};
+      var busy = st.slots.map(function (s) { return s.store; });
+      var store = tp.PREVIEW_STORES.filter(function (name) { return busy.indexOf(name) < 0; })[0];
+      st.sent = l;
+      st.slots.push({store: store, t: now});
+      return {store: store, data: {drag: true, key: l.key, value: l.value, t: now}};
     },
-    /* A map (or its messages) arrived: the way is free; if the hand moved since, ask for its newest
-       position now (set_props: the drag store is an input of the map, so no callback may output it here). */
+    /* A new map was drawn (or the map's messages arrived): the oldest slot is free; if the hand moved since,
+       ask for its newest position now (set_props: the drag stores are inputs of the map callbacks, so no
+       callback may output them here). */
     mapDrawn: function () {
       var tp = window.dash_clientside.thermoplane, st = tp.dragState();
-      st.inflight = 0;
+      st.slots.shift();
       var next = tp.nextPreview();
-      if (next) { window.dash_clientside.set_props("comp-drag", {data: next}); }
+      if (next) { window.dash_clientside.set_props(next.store, {data: next.data}); }
       return window.dash_clientside.no_update;
+    },
+    /* Listen to the plot itself for new maps (once per plot): a Dash callback on the figure would cost the
+       page a pass over every component for each preview. Only a new shaded trace counts (a zoom or a
+       legend click redraws the same map). */
+    watchMap: function () {
+      var gd = document.querySelector("#plane-graph .js-plotly-plot");
+      if (!gd || gd.__tpWatched || typeof gd.on !== "function") { return; }
+      gd.__tpWatched = true;
+      var heat = function () { return gd.data ? gd.data.find(function (d) { return d.type === "heatmap"; }) : null; };
+      gd.__tpShown = heat();
+      gd.on("plotly_afterplot", function () {
+        var t = heat();
+        if (t && t !== gd.__tpShown) { gd.__tpShown = t; window.dash_clientside.thermoplane.mapDrawn(); }
+      });
     },
     boxToSlider: function (bx, by, bz, sx, sy, sz, drag) {
       var nu = window.dash_clientside.no_update;

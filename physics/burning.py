@@ -292,7 +292,9 @@ def epsilon(rho, T, comp: Composition, process: str, *, screening: bool = True) 
         raise ValueError(f"comp must be a Composition, got {type(comp).__name__}")
     rho = _check_positive("rho", rho)
     T = _check_positive("T", T)
-    rho, T = np.broadcast_arrays(rho, T)
+    shape = np.broadcast_shapes(rho.shape, T.shape)
+    # rho and T keep their own shapes: on a map (rho a row, T a column) the factors of T alone and of
+    # rho alone are computed once per row or column, and only their sums over the whole plane
     T9 = T / 1e9
     with np.errstate(under="ignore"):
         log_eps, abundance, steps = _FITS[process](rho, T9, comp)
@@ -300,7 +302,8 @@ def epsilon(rho, T, comp: Composition, process: str, *, screening: bool = True) 
             for Z1, Z2 in steps:
                 log_eps = log_eps + screening_exponent(rho, T, comp, Z1, Z2)
         eps = abundance * np.exp(np.minimum(log_eps, _LOG_EPS_MAX))
-    return np.asarray(eps, dtype=float)
+    eps = np.asarray(eps, dtype=float)
+    return eps if eps.shape == shape else np.array(np.broadcast_to(eps, shape))
 
 
 @dataclass(frozen=True)

@@ -15,6 +15,7 @@ array passes.
 from __future__ import annotations
 
 import numpy as np
+from numba import njit
 
 from . import constants as const
 from .regimes import (BOUNDARY_LABELS, COUPLING_GAMMA, DEGENERACY_ETA,
@@ -36,7 +37,7 @@ def level_line(x: np.ndarray, y: np.ndarray, field: np.ndarray, level: float, al
         Axes of the grid (log rho, log T).
     field : 2-D array
         Values on the grid, rows along y.
-    level : float
+    level : float, or 1-D array of one level per column (``along="y"`` only)
     along : {"y", "x"}
         Scan each column along y (the line is a function of x) or each row along x.
 
@@ -46,24 +47,48 @@ def level_line(x: np.ndarray, y: np.ndarray, field: np.ndarray, level: float, al
         The k-th crossing of every column forms piece k; pieces are joined with NaN between them.
         Empty arrays when the field never crosses the level.
     """
-    D = np.asarray(field, dtype=float) - level
+    field = np.asarray(field)
+    if field.dtype not in (np.float32, np.float64):
+        field = field.astype(float)
     if along == "x":
-        ys, xs = level_line(y, x, D.T, 0.0, along="y")
+        if np.ndim(level):
+            raise ValueError("a level per column needs along='y'")
+        ys, xs = level_line(y, x, field.T, level, along="y")
         return xs, ys
-    lo, hi = D[:-1], D[1:]
-    cross = np.isfinite(lo) & np.isfinite(hi) & ((lo < 0) != (hi < 0))
-    if not cross.any():
+    y = np.ascontiguousarray(y, dtype=float)
+    levels = np.ascontiguousarray(np.broadcast_to(np.asarray(level, dtype=float), (field.shape[1],)))
+    pieces, used = _column_crossings(field, levels, y, MAX_PIECES)
+    if used == 0:
         return np.array([]), np.array([])
-    rank = np.cumsum(cross, axis=0) - 1
-    i, j = np.nonzero(cross & (rank < MAX_PIECES))
-    w = lo[i, j] / (lo[i, j] - hi[i, j])
-    at = y[i] + w * (y[i + 1] - y[i])
-    pieces = np.full((MAX_PIECES, x.size), np.nan)
-    pieces[rank[i, j], j] = at
-    pieces = pieces[np.isfinite(pieces).any(axis=1)]
-    xs = np.concatenate([np.append(x, np.nan) for _ in pieces])
-    ys = np.concatenate([np.append(p, np.nan) for p in pieces])
+    xs = np.concatenate([np.append(x, np.nan) for _ in range(used)])
+    ys = np.concatenate([np.append(p, np.nan) for p in pieces[:used]])
     return xs[:-1], ys[:-1]
+
+
+@njit(cache=True)
+def _column_crossings(field, levels, y, max_pieces):
+    """One pass over the grid: the k-th crossing of its column's level (``levels[j]``) down each column
+    (k < max_pieces), placed by linear interpolation in y, and how many ranks occur. A crossing is a sign
+    change of field - level between two finite neighbours."""
+    n_y, n_x = field.shape
+    pieces = np.full((max_pieces, n_x), np.nan)
+    rank = np.zeros(n_x, dtype=np.int64)
+    lo = np.empty(n_x)
+    for j in range(n_x):
+        lo[j] = float(field[0, j]) - levels[j]
+    for i in range(n_y - 1):                        # row by row: the grid is read in memory order
+        for j in range(n_x):
+            hi = float(field[i + 1, j]) - levels[j]
+            a = lo[j]
+            if np.isfinite(a) and np.isfinite(hi) and (a < 0) != (hi < 0) and rank[j] < max_pieces:
+                w = a / (a - hi)
+                pieces[rank[j], j] = y[i] + w * (y[i + 1] - y[i])
+                rank[j] += 1
+            lo[j] = hi
+    used = 0
+    for j in range(n_x):
+        used = max(used, rank[j])
+    return pieces, used
 
 
 def grid_boundaries(grid, comp, keys=None, **physics_options):
@@ -76,23 +101,27 @@ def grid_boundaries(grid, comp, keys=None, **physics_options):
     active = _active_keys(comp, opts)
     keys = active if keys is None else [k for k in active if k in keys]
     x, y = grid.log_rho, grid.log_T
-    log_ye = np.log10(np.maximum(grid.get("mean_ionization") * comp.ye, 1e-300))
+
+    def log_ne():                                   # log10 of rho Y_e, whose level is x_F = 1
+        return x[None, :] + np.log10(np.maximum(grid.get("mean_ionization") * comp.ye, 1e-300))
+
     levels = {
-        "equality": (grid.get("log_prad_pgas"), 0.0, "y"),
-        "degeneracy": (grid.get("eta"), DEGENERACY_ETA, "y"),
-        "relativistic": (x[None, :] + log_ye, np.log10(const.n_e_relativistic * const.m_u * RELATIVISTIC_XF**3), "x"),
-        "pairs": (grid.get("log_pair_fraction"), np.log10(PAIR_ONSET), "y"),
-        "coupling": (grid.get("log_Gamma"), np.log10(COUPLING_GAMMA), "y"),
-        "crystallization": (grid.get("melt_margin"), 0.0, "y"),
-        "quantum_ions": (grid.get("log_T_Tp"), 0.0, "y"),
-        "h_ionization": (grid.get("ion_H"), HALF_IONIZATION, "y"),
-        "he_ionization": (grid.get("ion_He2"), HALF_IONIZATION, "y"),
-        "h2_dissociation": (grid.get("h2_fraction"), 0.5, "y"),
-        "coexistence": (grid.get("coexistence"), 0.5, "x"),
+        "equality": ("log_prad_pgas", 0.0, "y"),
+        "degeneracy": ("eta", DEGENERACY_ETA, "y"),
+        "relativistic": (log_ne, np.log10(const.n_e_relativistic * const.m_u * RELATIVISTIC_XF**3), "x"),
+        "pairs": ("log_pair_fraction", np.log10(PAIR_ONSET), "y"),
+        "coupling": ("log_Gamma", np.log10(COUPLING_GAMMA), "y"),
+        "crystallization": ("melt_margin", 0.0, "y"),
+        "quantum_ions": ("log_T_Tp", 0.0, "y"),
+        "h_ionization": ("ion_H", HALF_IONIZATION, "y"),
+        "he_ionization": ("ion_He2", HALF_IONIZATION, "y"),
+        "h2_dissociation": ("h2_fraction", 0.5, "y"),
+        "coexistence": ("coexistence", 0.5, "x"),
     }
     out = []
     for key in keys:
-        field, level, along = levels[key]
+        name, level, along = levels[key]
+        field = name() if callable(name) else grid.get(name)
         xs, ys = level_line(x, y, np.broadcast_to(field, grid.shape), level, along=along)
         out.append((key, BOUNDARY_LABELS[key], xs, ys))
     return out
@@ -114,7 +143,7 @@ def grid_mass_lines(grid, masses):
     out = []
     for m in masses:
         need = np.log10(W3 * const.G * (m * const.M_sun) ** (2.0 / 3.0)) + (4.0 / 3.0) * grid.log_rho
-        xs, ys = level_line(grid.log_rho, grid.log_T, grid.get("log_P") - need[None, :], 0.0)
+        xs, ys = level_line(grid.log_rho, grid.log_T, grid.get("log_P"), need)
         if xs.size:
             first = np.flatnonzero(np.isnan(xs))
             end = first[0] if first.size else xs.size

@@ -221,10 +221,11 @@ def _photo_coefficients(T):
 
 def _log_photo(T, lam, nu, xi):
     """ln Q_photo (erg cm^-3 s^-1), Itoh 96 sec. 3 (from memory, not checked against the paper text)."""
-    # the coefficients depend on T alone: computed once per distinct temperature (a map has one per row)
+    # the coefficients depend on T alone: computed once per distinct temperature (a map passes T as one
+    # column, so once per row)
     T_unique, inverse = np.unique(T, return_inverse=True)
     a_u, c_u, q_u, poly_u = _photo_coefficients(T_unique)
-    inverse = inverse.reshape(T.shape)
+    inverse = inverse.reshape(np.shape(T))
     a = a_u[inverse]
     c_exp, q_lam, poly = c_u[inverse], q_u[inverse], poly_u[inverse]
     num = a[..., 0] + a[..., 1] * xi + a[..., 2] * xi**2
@@ -251,9 +252,14 @@ def _log_plasma(T, lam, nu):
     log_T = np.log10(T)
     x = (17.5 + log_2nu - 3.0 * log_T) / 6.0
     y = (-24.5 + log_2nu + 3.0 * log_T) / 6.0
+    # evaluated only where it applies (a band of the plane): the same numbers, fewer of them
+    where = (np.abs(x) <= 0.7) & (y >= 0.0)
+    x, y = np.broadcast_arrays(x, y)
+    x, y = x[where], y[where]
     corr = (0.39 - 1.25 * x - 0.35 * np.sin(4.5 * x) - 0.3 * np.exp(-(4.5 * x + 0.9) ** 2))
     shape = np.exp(-(np.minimum(0.0, y - 1.6 + 1.25 * x) / (0.57 - 0.25 * x)) ** 2)
-    f_xy = np.where((np.abs(x) <= 0.7) & (y >= 0.0), 1.05 + corr * shape, 1.0)
+    f_xy = np.ones(where.shape)
+    f_xy[where] = 1.05 + corr * shape
     # Q_plasma = (C_V^2 + n C'_V^2) 3.00e21 lam^9 gamma^6 e^{-gamma} (f_T + f_L) f_xy
     return (math.log(_SUM_VECTOR * 3.00e21) + 9.0 * np.log(lam) + 6.0 * np.log(gamma) - gamma
             + np.log(f_T + f_L) + np.log(f_xy))
@@ -320,15 +326,21 @@ def epsilon_parts(rho, T, comp: Composition) -> dict[str, np.ndarray]:
         raise ValueError(f"comp must be a Composition, got {type(comp).__name__}")
     rho = _check_positive("rho", rho)
     T = _check_positive("T", T)
-    rho, T = np.broadcast_arrays(rho, T)
+    shape = np.broadcast_shapes(rho.shape, T.shape)
+    # rho and T keep their own shapes: on a map (rho a row, T a column) every factor of T alone or of
+    # rho alone is computed once per row or column, and only the mixed terms over the whole plane
     lam, nu, xi = _variables(rho, T, comp)
+    log_rho = np.log(rho)
     out = {}
     with np.errstate(under="ignore", over="ignore"):
         for name, log_q in (("pair", _log_pair(T, lam, nu, xi)), ("photo", _log_photo(T, lam, nu, xi)),
                             ("plasma", _log_plasma(T, lam, nu))):
             # per gram; the clip keeps exp finite far outside the fits (never reached on the plane)
-            out[name] = np.exp(np.minimum(log_q - np.log(rho), 700.0))
+            out[name] = np.exp(np.minimum(log_q - log_rho, 700.0))
         out["bremsstrahlung"] = np.asarray(_brems_per_gram(rho, T, comp), dtype=float)
+    for name in PROCESSES:
+        if out[name].shape != shape:
+            out[name] = np.array(np.broadcast_to(out[name], shape))
     out["total"] = out["pair"] + out["photo"] + out["plasma"] + out["bremsstrahlung"]
     return out
 

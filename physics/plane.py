@@ -10,8 +10,9 @@ from __future__ import annotations
 
 import threading
 from collections import OrderedDict
+from collections.abc import Mapping
 from dataclasses import dataclass, field
-from typing import NamedTuple
+from typing import Callable, NamedTuple
 
 import numpy as np
 
@@ -80,6 +81,60 @@ QUANTITIES: tuple[Quantity, ...] = (
 _QUANTITY_BY_NAME = {q.name: q for q in QUANTITIES}
 
 
+class PlaneFields(Mapping):
+    """Field name -> read-only float32 array of a plane; the layers that need no equation of state (burning
+    rates, neutrino losses) are computed on first use and then kept.
+
+    A composition change redraws the default map with the lines of two burning processes and the neutrino
+    total; the other rates (and the dominant neutrino process) cost nothing until a view shows them.
+    ``later`` maps each such field to a function that returns a dict of arrays (it may give several
+    fields at once). Thread-safe: a field is computed once.
+    """
+
+    def __init__(self, ready: dict, later: dict, shape: tuple[int, int]):
+        self._ready = dict(ready)
+        self._later = dict(later)
+        self._names = tuple(ready) + tuple(k for k in later if k not in ready)
+        self._shape = shape
+        self._lock = threading.Lock()
+
+    def __getitem__(self, name):
+        arr = self._ready.get(name)
+        if arr is not None:
+            return arr
+        if name not in self._later:
+            raise KeyError(name)
+        with self._lock:
+            if name not in self._ready:
+                for key, value in self._later[name]().items():
+                    self._ready.setdefault(key, _frozen(value, self._shape))
+        return self._ready[name]
+
+    def __iter__(self):
+        return iter(self._names)
+
+    def __len__(self):
+        return len(self._names)
+
+    def __contains__(self, name):
+        return name in self._ready or name in self._later
+
+    def computed(self) -> tuple[str, ...]:
+        """The fields computed so far."""
+        return tuple(self._ready)
+
+    @property
+    def nbytes(self) -> int:
+        """Bytes of every field once all are computed (the cache counts them all from the start)."""
+        return 4 * self._shape[0] * self._shape[1] * len(self._names)
+
+
+def _frozen(value, shape) -> np.ndarray:
+    arr = np.ascontiguousarray(np.broadcast_to(value, shape), dtype=np.float32)
+    arr.flags.writeable = False
+    return arr
+
+
 @dataclass
 class PlaneGrid:
     """Every shaded quantity on a regular (log T, log rho) grid.
@@ -90,8 +145,9 @@ class PlaneGrid:
         Column coordinates, log10 g cm^-3.
     log_T : ndarray, shape (n_T,)
         Row coordinates, log10 K.
-    fields : dict of str -> float32 ndarray, shape (n_T, n_rho)
-        Row i is log_T[i]. Names and labels in :data:`QUANTITIES`.
+    fields : mapping of str -> float32 ndarray, shape (n_T, n_rho)
+        Row i is log_T[i]. Names and labels in :data:`QUANTITIES`. A :class:`PlaneFields`: the
+        burning and neutrino fields are computed when first asked for.
     regime : int8 ndarray, shape (n_T, n_rho)
         Index into :data:`thermoplane.physics.regimes.REGIMES`.
     unavailable : tuple of str
@@ -102,7 +158,7 @@ class PlaneGrid:
 
     log_rho: np.ndarray
     log_T: np.ndarray
-    fields: dict[str, np.ndarray]
+    fields: Mapping[str, np.ndarray]
     regime: np.ndarray
     unavailable: tuple[str, ...] = ()
     quantities: tuple[Quantity, ...] = field(default=QUANTITIES, repr=False)
@@ -118,8 +174,9 @@ class PlaneGrid:
 
     @property
     def nbytes(self) -> int:
-        return int(self.log_rho.nbytes + self.log_T.nbytes + self.regime.nbytes
-                   + sum(a.nbytes for a in self.fields.values()))
+        held = self.fields.nbytes if isinstance(self.fields, PlaneFields) else sum(
+            a.nbytes for a in self.fields.values())
+        return int(self.log_rho.nbytes + self.log_T.nbytes + self.regime.nbytes + held)
 
     def get(self, name: str) -> np.ndarray:
         """A field by name ("regime" gives the codes); ValueError for an unknown name."""
@@ -199,28 +256,42 @@ def _compute(comp, lr, lt, n_rho, n_T, opts) -> PlaneGrid:
         from . import burning
     except ModuleNotFoundError:
         burning = None
+    # the layers without equation of state: each computed when a shading or a line first asks for it
+    # (rho and T stay a row and a column: physics.burning and physics.neutrinos compute what depends on
+    # one of them once per column or row)
+    later: dict[str, Callable[[], dict]] = {}
     for process in BURNING_PROCESSES:
         name = f"eps_{process}"
         if burning is None:
             fields[name] = np.full(shape, np.nan)
             unavailable.append(name)
         else:
-            fields[name] = _log_eps(np.asarray(burning.epsilon(rho, T, comp, process), dtype=float))
+            later[name] = _burning_layer(burning, rho, T, comp, process)
     # neutrino losses (physics.neutrinos): the total, and the code of the largest part
     # (index into neutrinos.PROCESSES; NaN where the total is below EPS_FLOOR)
-    from . import neutrinos
-    parts = neutrinos.epsilon_parts(rho, T, comp)
-    fields["log_eps_nu"] = _log_eps(parts["total"])
-    fields["nu_process"] = np.where(np.isfinite(fields["log_eps_nu"]), neutrinos.dominant_process(parts), np.nan)
-    out = {}
-    for name, value in fields.items():
-        arr = np.ascontiguousarray(np.broadcast_to(value, shape), dtype=np.float32)
-        arr.flags.writeable = False
-        out[name] = arr
+    later["log_eps_nu"] = later["nu_process"] = _neutrino_layer(rho, T, comp)
+    out = {name: _frozen(value, shape) for name, value in fields.items()}
     regime = np.ascontiguousarray(np.broadcast_to(classify_codes(s), shape), dtype=np.int8)
     for arr in (regime, log_rho, log_T):
         arr.flags.writeable = False
-    return PlaneGrid(log_rho=log_rho, log_T=log_T, fields=out, regime=regime, unavailable=tuple(unavailable))
+    return PlaneGrid(log_rho=log_rho, log_T=log_T, fields=PlaneFields(out, later, shape), regime=regime,
+                     unavailable=tuple(unavailable))
+
+
+def _burning_layer(burning, rho, T, comp, process):
+    def compute():
+        return {f"eps_{process}": _log_eps(np.asarray(burning.epsilon(rho, T, comp, process), dtype=float))}
+    return compute
+
+
+def _neutrino_layer(rho, T, comp):
+    def compute():
+        from . import neutrinos
+        parts = neutrinos.epsilon_parts(rho, T, comp)
+        log_total = _log_eps(parts["total"])
+        return {"log_eps_nu": log_total,
+                "nu_process": np.where(np.isfinite(log_total), neutrinos.dominant_process(parts), np.nan)}
+    return compute
 
 
 def plane_grid(comp, log_rho=(-10.0, 10.0), log_T=(3.0, 10.0), n_rho: int = 300, n_T: int = 300,

@@ -197,11 +197,12 @@ def register(app) -> None:
         State("comp-drag", "data"), State("comp-zauto", "value"),
         prevent_initial_call=True,
     )
-    # A map (or the map's messages, when it could not be drawn) arrived: the next preview may go.
+    # The map's messages arrived (a preview that could not be drawn): the next preview may go. A drawn map
+    # says so from the plot itself (watchMap in assets/thermoplane.js: no callback on the figure).
     app.clientside_callback(
         "function(){ return window.dash_clientside.thermoplane.mapDrawn.apply(null, arguments); }",
         Output("map-drawn", "data"),
-        Input("plane-graph", "figure"), Input("map-message", "children"), Input("comp-message", "children"),
+        Input("map-message", "children"), Input("comp-message", "children"), Input("phys-message", "children"),
         prevent_initial_call=True,
     )
     app.clientside_callback(

@@ -25,7 +25,7 @@ from .composition import number, readout
 log = logging.getLogger(__name__)
 
 __all__ = ["MESSAGES", "ViewError", "parse_view", "physics_options", "map_figure", "update_map", "is_preview",
-           "PREVIEW_RESOLUTION", "zoom_ranges", "dragged_controls", "map_answer", "NO_PREVIEW",
+           "PREVIEW_RESOLUTION", "zoom_ranges", "dragged_controls", "map_answer", "preview_answer", "NO_PREVIEW",
            "composition_from_inputs", "quantity", "register"]
 
 #: Message areas, each next to the controls whose errors it shows.
@@ -151,8 +151,9 @@ def _colour_range(z, q, mid, transform_unit):
     return z, lo, hi, vals, texts, clipped
 
 
-def build(comp, opts: dict, view: dict, extra_traces=()):
-    """(figure, grid, messages) for a checked view; physics from the caches."""
+def build(comp, opts: dict, view: dict, extra_traces=(), plain: bool = False):
+    """(figure, grid, messages) for a checked view; physics from the caches. ``plain``: the figure as a
+    plain dict (:func:`app.figures.plane_figure`), for :func:`app.delta.figure_update`."""
     n = int(view["resolution"])
     grid = plane.plane_grid(comp, tuple(view["log_rho"]), tuple(view["log_T"]), n, n, **opts)
     q = quantity(view["quantity"])
@@ -163,7 +164,7 @@ def build(comp, opts: dict, view: dict, extra_traces=()):
     common = dict(lines=lines, presentation=bool(view.get("presentation")), customdata=grid.regime,
                   extra_traces=extra_traces,
                   unphysical=unphysical if unphysical.any() else None,
-                  unphysical_label=UNPHYSICAL_LABEL)
+                  unphysical_label=UNPHYSICAL_LABEL, plain=plain)
     if q.categorical and q.name not in ("regime",) and not q.name.startswith("impact_"):
         fig = figures.plane_figure(grid.log_rho, grid.log_T, grid.get(q.name), z_label=q.label,
                                    categorical=layers.categories(q.name), **common)
@@ -246,7 +247,7 @@ def _empty_messages() -> dict:
     return {m: "" for m in MESSAGES}
 
 
-def update_map(tracks=None, track_colour_by=None, preview=False, **controls) -> dict:
+def update_map(tracks=None, track_colour_by=None, preview=False, plain=False, **controls) -> dict:
     """Callback body: control values (keyed like state.CONTROLS) -> outputs dict.
 
     ``tracks`` is the tracks store (drawn over the map, so they survive every
@@ -258,6 +259,9 @@ def update_map(tracks=None, track_colour_by=None, preview=False, **controls) -> 
 
     ``preview`` (a slider is moving): the map is drawn with at most :data:`PREVIEW_RESOLUTION` pixels per
     side and the view (URL, point, tracks readouts) is left alone until the full map follows.
+
+    ``plain``: the figure as a plain dict of plotly.js properties instead of a plotly Figure (what
+    :func:`map_answer` hands to app.delta).
     """
     out = {"figure": no_update, "readout": no_update, "view": no_update, **_empty_messages()}
     try:
@@ -265,7 +269,8 @@ def update_map(tracks=None, track_colour_by=None, preview=False, **controls) -> 
         comp, opts, clean = parse_view(view)
         out["readout"] = readout(comp)
         drawn = {**clean, "resolution": min(int(clean["resolution"]), PREVIEW_RESOLUTION)} if preview else clean
-        fig, grid, messages = build(comp, opts, drawn, track_overlay(tracks, track_colour_by, comp, opts, drawn))
+        fig, grid, messages = build(comp, opts, drawn, track_overlay(tracks, track_colour_by, comp, opts, drawn),
+                                    plain=plain)
         out.update(messages)
         out["figure"] = fig
         if not preview:
@@ -344,7 +349,7 @@ def map_answer(drag, shape, triggered, **controls) -> dict:
         out = {key: no_update for key in ("figure", "readout", "view", "shape", *MESSAGES)}
         out["phys-message"] = NO_PREVIEW
         return out
-    out = update_map(preview=preview, **(dragged_controls(drag, controls) if preview else controls))
+    out = update_map(preview=preview, plain=True, **(dragged_controls(drag, controls) if preview else controls))
     out["shape"] = no_update
     if preview:
         # while the hand moves, an empty message is not sent again (each output costs the browser a
@@ -353,6 +358,21 @@ def map_answer(drag, shape, triggered, **controls) -> dict:
     if out["figure"] is not no_update:
         out["figure"], out["shape"] = delta.figure_update(out["figure"], shape)
     return out
+
+
+#: Outputs of the second preview callback (the map callback's, but the view: a preview leaves it alone).
+PREVIEW_OUTPUTS = ("figure", "readout", "shape", *MESSAGES)
+
+
+def preview_answer(drag, shape, **controls) -> dict:
+    """The second preview callback's answer (store "comp-drag-b"): a coarse preview while a slider is held,
+    else nothing (the page writes that store when the hand lets go, so that Dash drops a preview still on
+    its way). The page keeps one preview in flight on this callback and one on the map callback's, so the
+    server computes the next while the browser draws the last (assets/thermoplane.js)."""
+    if not (isinstance(drag, dict) and drag.get("drag")):
+        return {key: no_update for key in PREVIEW_OUTPUTS}
+    out = map_answer(drag, shape, ["comp-drag.data"], **controls)
+    return {key: out[key] for key in PREVIEW_OUTPUTS}
 
 
 def register(app) -> None:
@@ -371,6 +391,18 @@ def register(app) -> None:
         return map_answer(drag, shape, ctx.triggered_prop_ids, **controls)
 
     app.callback(output=outputs, inputs=inputs)(_map)
+
+    # The second preview callback: the same outputs (allow_duplicate), the controls as State, its own drag store.
+    b_outputs = {key: Output(outputs[key].component_id, outputs[key].component_property, allow_duplicate=True)
+                 for key in PREVIEW_OUTPUTS}
+    b_inputs = {k: State(cid, prop) for k, (cid, prop) in CONTROLS.items()}
+    b_inputs.update(tracks=State("tracks-store", "data"), track_colour_by=State("tracks-colour-by", "value"),
+                    drag=Input("comp-drag-b", "data"), shape=State("map-shape", "data"))
+
+    def _preview(drag=None, shape=None, **controls):
+        return preview_answer(drag, shape, **controls)
+
+    app.callback(output=b_outputs, inputs=b_inputs, prevent_initial_call=True)(_preview)
 
     # Zoom and pan recompute the plane: the new ranges go into the range boxes (the view and the URL).
     app.callback(Output("map-rho-lo", "value", allow_duplicate=True), Output("map-rho-hi", "value", allow_duplicate=True),

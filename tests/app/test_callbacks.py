@@ -123,8 +123,12 @@ def test_quantity_colour_and_layers_cost_no_physics(monkeypatch):
 
 
 def test_a_composition_change_costs_one_plane_evaluation():
+    plane.clear_cache()                          # another test may have drawn this composition already
     before = plane.evaluation_count()
     map_cb.update_map(**controls(X=0.6, Y=0.38))
+    assert plane.evaluation_count() == before + 1
+    # and the map callback's answer (figure, lines, Patch) evaluates nothing more
+    map_cb.map_answer(None, None, ["comp-X.value"], **controls(X=0.6, Y=0.38))
     assert plane.evaluation_count() == before + 1
 
 
@@ -412,6 +416,20 @@ def test_preview_draws_coarse_and_leaves_the_view_alone():
     full = map_cb.update_map(**c)
     assert heatmap(full["figure"]).z.shape == (300, 300)
     assert full["view"]["view"]["resolution"] == 300
+
+
+def test_second_preview_callback_answers_only_while_the_hand_holds_a_slider():
+    # the page keeps one preview in flight on the map callback and one on this one (assets/thermoplane.js)
+    c = controls(resolution=300, zauto=True)
+    idle = map_cb.preview_answer({"drag": False, "key": "X"}, None, **c)
+    assert set(idle) == set(map_cb.PREVIEW_OUTPUTS) and all(v is no_update for v in idle.values())
+    assert all(v is no_update for v in map_cb.preview_answer("junk", None, **c).values())
+    held = map_cb.preview_answer({"drag": True, "key": "X", "value": 0.5}, None, **c)
+    assert "view" not in held                                       # the view waits for the full map
+    assert held["readout"].startswith("μ = ")
+    fig = held["figure"]                                            # a whole figure: nothing shown yet
+    z = next(t for t in fig["data"] if t["type"] == "heatmap")["z"]
+    assert z["shape"] == f"{map_cb.PREVIEW_RESOLUTION}, {map_cb.PREVIEW_RESOLUTION}"
 
 
 def test_preview_keeps_the_sum_rule_message():

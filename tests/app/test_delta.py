@@ -103,3 +103,24 @@ def test_a_composition_change_through_the_server_sends_at_most_half_a_megabyte(s
     # what the browser shows after the patch is the new composition's whole figure
     whole = response_parts(post(map_request(app, changed, "comp-X.value")).json())["plane-graph.figure"]
     assert apply_patch(shown, patch) == whole
+
+
+def test_typed_arrays_are_written_as_plotly_writes_them():
+    from _plotly_utils.utils import to_typed_array_spec
+    rng = np.random.default_rng(3)
+    for arr in (rng.normal(size=(7, 9)).astype(np.float32), rng.normal(size=5), np.arange(4, dtype=np.int8),
+                rng.normal(size=(4, 6)).astype(np.float32).T, np.arange(3, dtype=np.uint16),
+                np.arange(12, dtype=np.int64).reshape(3, 4), np.arange(3, dtype=">f8")):
+        ours, theirs = delta.encode(arr), to_typed_array_spec(arr)
+        if isinstance(theirs, dict):
+            assert ours == theirs, arr.dtype
+        else:                                              # what plotly leaves as an array (big-endian)
+            assert isinstance(ours, np.ndarray)
+
+
+def test_the_plain_figure_the_map_callback_sends_is_the_plotly_figure():
+    # map_answer builds the figure as a plain dict (no plotly Figure to deep-copy): the browser gets the same JSON
+    c = controls(quantity="eta")
+    as_figure, _ = delta.figure_update(map_cb.update_map(**c)["figure"])
+    as_dict, _ = delta.figure_update(map_cb.update_map(plain=True, **c)["figure"])
+    assert _sent(as_dict) == _sent(as_figure)

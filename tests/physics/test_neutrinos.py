@@ -394,3 +394,20 @@ def test_bad_input():
         epsilon(1.0, np.nan, CO)
     with pytest.raises(ValueError, match="Composition"):
         epsilon(1.0, 1e8, {"He-4": 1.0})
+
+
+def test_a_row_of_densities_and_a_column_of_temperatures_give_the_same_numbers_as_the_whole_plane():
+    # a map passes rho as a row and T as a column; the factors of one of them are then computed once per
+    # column or row: the result must be the same, bit for bit, as for the full arrays
+    comp = Composition.from_xyz(0.7, 0.28, 0.02)
+    rho = 10.0 ** np.linspace(-10, 12, 61)[None, :]
+    T = 10.0 ** np.linspace(3, 11, 47)[:, None]
+    split = epsilon_parts(rho, T, comp)
+    whole = epsilon_parts(*np.broadcast_arrays(rho, T), comp)
+    for name in (*PROCESSES, "total"):
+        assert split[name].shape == (47, 61)
+        assert np.array_equal(split[name], whole[name]), name
+    for process in burning.PROCESSES:
+        assert np.array_equal(burning.epsilon(rho, T, comp, process),
+                              burning.epsilon(*np.broadcast_arrays(rho, T), comp, process)), process
+    assert epsilon_parts(1e5, T, comp)["pair"].shape == (47, 1)

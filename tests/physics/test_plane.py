@@ -154,3 +154,37 @@ def test_bad_input_raises_before_computing(kw, word):
 def test_bad_composition():
     with pytest.raises(ValueError, match="Composition"):
         plane.plane_grid({"H-1": 1.0})
+
+
+def test_burning_and_neutrino_layers_are_computed_when_first_asked_for():
+    g = plane.plane_grid(SOLAR, log_rho=(-4, 8), log_T=(6, 9.5), n_rho=12, n_T=11)
+    lazy = {f"eps_{p}" for p in plane.BURNING_PROCESSES} | {"log_eps_nu", "nu_process"}
+    assert lazy <= set(g.fields)                               # listed from the start
+    assert not lazy & set(g.fields.computed())                 # but not computed
+    # the cache counts every field from the start, so filling them in never breaks its bound
+    assert g.nbytes == g.log_rho.nbytes + g.log_T.nbytes + g.regime.nbytes + 4 * 12 * 11 * len(g.fields)
+    first = g.get("eps_pp")
+    assert "eps_pp" in g.fields.computed() and "eps_cno" not in g.fields.computed()
+    assert g.get("eps_pp") is first                            # computed once, then kept
+    nu = g.get("nu_process")                                   # both neutrino fields in one go
+    assert {"log_eps_nu", "nu_process"} <= set(g.fields.computed())
+    assert nu.dtype == np.float32 and not nu.flags.writeable
+    # the same numbers as the whole-plane arrays would give (physics.neutrinos on the broadcast grid)
+    from thermoplane.physics import neutrinos
+    rho, T = np.broadcast_arrays(10.0 ** g.log_rho[None, :], 10.0 ** g.log_T[:, None])
+    parts = neutrinos.epsilon_parts(rho, T, SOLAR)
+    with np.errstate(divide="ignore"):
+        ref = np.log10(parts["total"])
+    ref = np.where(ref >= plane.EPS_FLOOR, ref, np.nan).astype(np.float32)
+    assert np.array_equal(g.get("log_eps_nu"), ref, equal_nan=True)
+
+
+def test_lazy_layers_from_many_threads_are_computed_once():
+    g = plane.plane_grid(SOLAR, n_rho=40, n_T=40)
+    out = []
+    threads = [threading.Thread(target=lambda: out.append(g.get("eps_triple_alpha"))) for _ in range(6)]
+    for t in threads:
+        t.start()
+    for t in threads:
+        t.join()
+    assert len(out) == 6 and all(a is out[0] for a in out)
