@@ -24,7 +24,8 @@ a free energy linear in v, so it moves no tangent and is added afterwards.
 
 How the curve is found, per temperature: the isotherm is scanned coarsely in log rho (LOG_RHO_RANGE, every
 COARSE_STEP) in one call of the equilibrium solver, then finely (FINE_STEP) across its turning points if it
-has any; on its solved points each local maximum of P followed by a local minimum is a loop;
+has any, and across each dip of chi_rho below CHI_DIP (a loop narrower than the coarse step shows only
+there); on its solved points each local maximum of P followed by a local minimum is a loop;
 g on the stable branch below (a) and above (b), as functions of ln P, is compared on their common pressure
 range, and the first sign change of g_a - g_b gives the start; Newton iterations on
 (ln P_a - ln P_b, (g_a - g_b) rho_a / P_a) in (ln rho_a, ln rho_b) converge it to rounding. Loops whose
@@ -184,14 +185,18 @@ FINE_STEP = 0.01
 FINE_MARGIN = 0.15
 #: loops wider than this in log rho are not looked for (the coarse scan's noise at NaN gaps)
 MAX_LOOP_WIDTH = 1.0
+#: a local minimum of chi_rho below this on the coarse scan is looked at finely (a loop may hide there)
+CHI_DIP = 0.3
 
 
 def _scan(lrs, T, comp, opts):
-    """P and g on isotherms: lrs is (rows, points) of log10 rho, T (rows,)."""
+    """P, g and chi_rho on isotherms: lrs is (rows, points) of log10 rho, T (rows,)."""
     RR = (10.0**lrs).ravel()
     TT = np.repeat(T, lrs.shape[1])
     r = _solve(RR, TT, comp, opts)
-    return r.P.reshape(lrs.shape), _gibbs(r, RR, TT).reshape(lrs.shape)
+    with np.errstate(invalid="ignore", divide="ignore"):
+        chi = r.P_lnrho / r.P
+    return r.P.reshape(lrs.shape), _gibbs(r, RR, TT).reshape(lrs.shape), chi.reshape(lrs.shape)
 
 
 def _construct(T, comp, opts):
@@ -202,11 +207,11 @@ def _construct(T, comp, opts):
         return res
     # 1. a coarse scan of every isotherm finds the turning points of P
     lr = np.arange(LOG_RHO_RANGE[0], LOG_RHO_RANGE[1] + 1e-9, COARSE_STEP)
-    P, _ = _scan(np.broadcast_to(lr, (scan.size, lr.size)), T[scan], comp, opts)
+    P, _, chi = _scan(np.broadcast_to(lr, (scan.size, lr.size)), T[scan], comp, opts)
     windows = []
     for k, i in enumerate(scan):                     # per isotherm (a hundred numbers each), not per point
         ok = np.isfinite(P[k]) & (P[k] > 0)
-        x, p = lr[ok], P[k][ok]
+        x, p, c = lr[ok], P[k][ok], chi[k][ok]
         if x.size < 5:
             continue
         d = np.sign(np.diff(p))
@@ -214,6 +219,12 @@ def _construct(T, comp, opts):
         for t0, t1 in zip(turns[:-1], turns[1:]):
             if d[t0 - 1] > 0 > d[t0] and x[t1] - x[t0] < MAX_LOOP_WIDTH:      # a maximum, then a minimum
                 windows.append((i, x[t0] - FINE_MARGIN, x[t1] + FINE_MARGIN))
+        # a loop narrower than the coarse step hides between two points whose P still rises; chi_rho
+        # dips towards it on both sides: a local minimum of chi_rho below CHI_DIP gets a fine window too
+        dips = np.flatnonzero((c[1:-1] < c[:-2]) & (c[1:-1] <= c[2:]) & (c[1:-1] < CHI_DIP)) + 1
+        for t in dips:
+            if not any(w[0] == i and w[1] <= x[t] <= w[2] for w in windows):
+                windows.append((i, x[t] - FINE_MARGIN, x[t] + FINE_MARGIN))
     if not windows:
         return res
     # 2. a fine scan across the turning points of the isotherms that have them
@@ -221,7 +232,7 @@ def _construct(T, comp, opts):
     m = int(np.ceil(width / FINE_STEP)) + 1
     rows = np.array([w[0] for w in windows])
     lrs = np.array([a + FINE_STEP * np.arange(m) for _, a, _ in windows])
-    Pf, gf = _scan(lrs, T[rows], comp, opts)
+    Pf, gf, _ = _scan(lrs, T[rows], comp, opts)
     # each window ends where it ends (the rows are padded to the widest): what a window finds must not
     # depend on which other isotherms were scanned with it
     beyond = lrs > np.array([b for _, _, b in windows])[:, None] + 1e-9

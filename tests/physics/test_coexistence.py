@@ -107,6 +107,22 @@ def test_isotherm_scan_at_a_thousandth_of_a_dex_never_has_pressure_falling(T):
     assert np.any(s.coexistence == 1.0)
 
 
+@pytest.mark.parametrize("T", [1e4, 3e4, 1e5])
+def test_solar_like_scans_at_a_thousandth_of_a_dex_are_solved_and_never_have_pressure_falling(T):
+    """The issue's scans: 1e4, 3e4 and 1e5 K across the pressure-ionization band of a solar-like mix, log rho
+    -1 to 2.5 every 0.001 dex. Every point solved, P never falls (chi_rho >= 0), and the narrow helium loop
+    (~0.03 dex at 1e5 K, less than the coarse scan's step) is constructed, not left as a falling P.
+    Gamma_1 and nabla_ad do jump at the edges of the two-phase regions (a first-order transition)."""
+    solar = ph.Composition.from_xyz(0.70, 0.28, 0.02)
+    lr = np.arange(-1.0, 2.5, 0.001)
+    s = _chem(10.0**lr, np.full_like(lr, T), solar)
+    assert np.all(np.isfinite(s.P))
+    assert np.all(s.chi_rho >= 0.0)
+    assert np.all(np.diff(s.P) >= -1e-12 * s.P[1:])
+    assert np.any(s.coexistence[lr > 1.5] == 1.0)                  # the helium loop
+    assert np.all(s.gamma1 > 0.0)
+
+
 def test_the_flag_and_the_words_for_a_point_inside(curve):
     from thermoplane.physics.regimes import describe, flags
     ra, rb, _ = curve
@@ -126,14 +142,15 @@ def test_the_command_line_says_it_in_words(curve, capsys):
     assert code in (0, None) and "two phases coexist" in out
 
 
-def test_a_solar_like_mix_has_the_hydrogen_loop_and_carbon_oxygen_its_own():
-    # with the electrons' exchange-correlation the helium loop of the mix is gone (its tie line had ~60-75
-    # g/cm^3 without it); the K shells of C and O give two loops near 3.5e3-4.3e3 and 9e3-1.04e4 g/cm^3
+def test_a_solar_like_mix_has_a_hydrogen_and_a_helium_loop_and_carbon_oxygen_its_own():
+    # the helium loop is narrower than the coarse scan's step (~0.03 dex at 1e5 K): it is found from the dip
+    # of chi_rho; the K shells of C and O give two loops near 3.5e3-4.3e3 and 9e3-1.04e4 g/cm^3
     solar = ph.Composition.from_xyz(0.70, 0.28, 0.02)
-    ra, rb, _ = binodal(np.array([5e4]), solar)
+    ra, rb, _ = binodal(np.array([5e4, 1e5]), solar)
     found = np.sort(ra[0][np.isfinite(ra[0])])
-    assert found.size == 1
-    assert 2.0 < found[0] < 6.0                                    # g/cm^3: the H loop
+    assert found.size == 2
+    assert 2.0 < found[0] < 6.0 and 30.0 < found[1] < 100.0      # g/cm^3: the H and the He loop
+    assert 30.0 < np.nanmin(ra[1]) < 100.0                          # at 1e5 K the He loop only
     co = ph.Composition({"C-12": 0.5, "O-16": 0.5})
     ra, rb, _ = binodal(np.array([3e4, 1e5, 2e6]), co)
     for row in ra[:2]:
