@@ -45,6 +45,7 @@ __all__ = ["mixture", "mixture_chosen", "mixture_free_energy", "merge_trace_spec
 
 GAMMA_LIQUID_MAX = 1000.0
 GAMMA_SOLID_MIN = 100.0
+_STRIDE = 64
 
 
 @njit(cache=True, error_model="numpy")
@@ -128,13 +129,16 @@ def mixture_chosen(n_e, T, Z, A, x):
 @njit(cache=True, parallel=True, error_model="numpy")
 def _many(n_e, T, Z, A, x, liq, sol, ion, flag, ele, both):
     sc, xG = _constants(Z, A, x)
-    for i in prange(n_e.size):
-        a, b, c, d, e = _mixture(n_e[i], T[i], Z, A, x, sc, xG, both)
-        liq[:, i] = a
-        sol[:, i] = b
-        ion[:, i] = c
-        flag[i] = d
-        ele[:, i] = e
+    # interleaved: task k takes the points k, k + _STRIDE, ... (crystal and quantum-ion points, the costly
+    # ones, cluster in one corner of a map: contiguous blocks per thread would be unequal)
+    for k in prange(_STRIDE):
+        for i in range(k, n_e.size, _STRIDE):
+            a, b, c, d, e = _mixture(n_e[i], T[i], Z, A, x, sc, xG, both)
+            liq[:, i] = a
+            sol[:, i] = b
+            ion[:, i] = c
+            flag[i] = d
+            ele[:, i] = e
 
 
 @serialized
