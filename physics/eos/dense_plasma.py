@@ -33,7 +33,7 @@ from ..thermo import Part
 from . import jet
 from .electron_xc import electron_xc_core
 from .parallel import serialized
-from .ion_liquid import ETA_SERIES, liquid_core
+from .ion_liquid import ETA_SERIES, liquid_core, ocp_liquid
 from .ion_solid import harmonic, solid_core
 from .plasma_parameters import point_scales, species_constants, species_jets
 from .screening import electron_q2, screening_core
@@ -70,6 +70,9 @@ def _mixture(n_e, T, Z, A, x, sc, xG, both):
     eps = jet.sqrt(jet.addc(x2, 1.0))
     Ed = jet.scale(jet.div(x2, eps), _MC2 / 3.0)
     q2e = electron_q2(ln_n, T, Ed)
+    # f_OCP at Gamma_e: the electrons' classical correlation, and hydrogen's (Z = 1) liquid
+    G1 = jet.loglin(scales[2], 1.0 / 3.0, -1.0)
+    ocp1 = ocp_liquid(G1)
     for i in range(Z.size):
         if x[i] <= 0.0:
             continue
@@ -78,7 +81,8 @@ def _mixture(n_e, T, Z, A, x, sc, xG, both):
         quantum_ions = eta[0] >= ETA_SERIES
         harm = harmonic(eta) if (need_solid or quantum_ions) else jet.const(0.0)
         if need_liquid:
-            liq = jet.add(liq, jet.scale(jet.add(liquid_core(G, eta, f_id, harm), sc_i), x[i]))
+            ocp = ocp1 if sc[0, i] == 1.0 else ocp_liquid(G)
+            liq = jet.add(liq, jet.scale(jet.add(liquid_core(G, eta, f_id, harm, ocp), sc_i), x[i]))
         if need_solid:
             sol = jet.add(sol, jet.scale(jet.add(solid_core(G, eta, f_id, harm), sc_i), x[i]))
     # the margin f_solid - f_liquid, kept away from zero where a phase is no candidate, so that its sign is
@@ -90,7 +94,7 @@ def _mixture(n_e, T, Z, A, x, sc, xG, both):
     else:
         margin = sol[0] - liq[0]
     ion = sol if margin < 0.0 else liq
-    xc = electron_xc_core(xj, x2, eps, jet.loglin(const.k_B * T, 0.0, 1.0), jet.loglin(scales[2], 1.0 / 3.0, -1.0))
+    xc = electron_xc_core(xj, x2, eps, jet.loglin(const.k_B * T, 0.0, 1.0), ocp1)
     return liq, sol, ion, margin, xc
 
 

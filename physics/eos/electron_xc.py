@@ -92,9 +92,10 @@ def exchange_energy_T0(n_e):
 
 
 @njit(cache=True, error_model="numpy")
-def electron_xc_core(x, x2, eps, kT, G1):
-    """f_xc from the jets x = p_F / (m_e c), x^2, eps = sqrt(1 + x^2), kT and Gamma_e (the coupling with
-    Z = 1), each a function of (ln n_e, ln T) already formed (the dense-plasma mixture shares them)."""
+def electron_xc_core(x, x2, eps, kT, f_cl):
+    """f_xc from the jets x = p_F / (m_e c), x^2, eps = sqrt(1 + x^2), kT and f_cl = f_OCP(Gamma_e) (the
+    classical electron one-component plasma, Gamma_e the coupling with Z = 1), each a function of
+    (ln n_e, ln T) already formed (the dense-plasma mixture shares them)."""
     eF = jet.scale(jet.div(x2, jet.addc(eps, 1.0)), _MC2)   # kinetic Fermi energy
     theta = jet.div(kT, eF)
     # T = 0 exchange per electron (exchange_T0): E_x/V / n_e, n_e = (m_e c/hbar)^3 x^3 / (3 pi^2)
@@ -107,7 +108,6 @@ def electron_xc_core(x, x2, eps, kT, G1):
     ec0 = jet.scale(jet.log1p(jet.scale(jet.add(irs, jet.sq(irs)), _CB)), _CA * _HARTREE)
     th2 = jet.sq(theta)
     w = jet.div(th2, jet.addc(th2, 1.0))
-    f_cl = ocp_liquid(G1)
     fc = jet.add(jet.mul(w, f_cl), jet.mul(jet.addc(jet.scale(w, -1.0), 1.0), jet.div(ec0, kT)))
     return jet.add(fx, fc)
 
@@ -121,7 +121,7 @@ def electron_xc(n_e, T, Z, A):
     x = jet.loglin(_PF0 * n_e ** (1.0 / 3.0), 1.0 / 3.0, 0.0)
     x2 = jet.sq(x)
     return electron_xc_core(x, x2, jet.sqrt(jet.addc(x2, 1.0)), jet.loglin(const.k_B * T, 0.0, 1.0),
-                            coupling(n_e, T, 1.0))
+                            ocp_liquid(coupling(n_e, T, 1.0)))
 
 
 @njit(cache=True, error_model="numpy")
