@@ -60,7 +60,7 @@ def _step_b(s):
 
 
 @njit(cache=True, error_model="numpy")
-def _lnq(j, Zi, g, C, eta, kT, gb, gone, sp, dsp):
+def _lnq(j, Zi, lng, C, eta, kT, gb, gone, sp, dsp):
     """ln q_j of stage j and its eta-partial (ionization_stages, one point)."""
     if j == Zi:                       # the bare nucleus is never destroyed
         lnw = 0.0
@@ -72,15 +72,15 @@ def _lnq(j, Zi, g, C, eta, kT, gb, gone, sp, dsp):
         depth = (C[Zi] - C[j]) / kT + (Zi - j) * (sp + MARGIN)
         lnw = -gb * depth
         dw = -gb * (Zi - j) * dsp
-    return math.log(g[j]) + lnw - j * eta - C[j] / kT, dw - j
+    return lng[j] + lnw - j * eta - C[j] / kT, dw - j
 
 
 @njit(cache=True, error_model="numpy")
-def _zbar(Zi, g, C, eta, kT, gb, gone, sp, dsp):
+def _zbar(Zi, lng, C, eta, kT, gb, gone, sp, dsp):
     """Mean charge of an element with Zi <= 2 and its eta-partial at fixed T and rho (no allocation)."""
-    l0, d0 = _lnq(0, Zi, g, C, eta, kT, gb, gone, sp, dsp)
-    l1, d1 = _lnq(1, Zi, g, C, eta, kT, gb, gone, sp, dsp)
-    l2, d2 = (_lnq(2, Zi, g, C, eta, kT, gb, gone, sp, dsp) if Zi == 2 else (-math.inf, 0.0))
+    l0, d0 = _lnq(0, Zi, lng, C, eta, kT, gb, gone, sp, dsp)
+    l1, d1 = _lnq(1, Zi, lng, C, eta, kT, gb, gone, sp, dsp)
+    l2, d2 = (_lnq(2, Zi, lng, C, eta, kT, gb, gone, sp, dsp) if Zi == 2 else (-math.inf, 0.0))
     top = max(l0, max(l1, l2))
     q0 = math.exp(l0 - top)
     q1 = math.exp(l1 - top)
@@ -92,21 +92,22 @@ def _zbar(Zi, g, C, eta, kT, gb, gone, sp, dsp):
 
 
 @njit(cache=True, error_model="numpy")
-def _charge(eta, kT, gb, gone, fixed, el_Z, el_N, el_g, el_C):
+def _charge(eta, kT, gb, gone, fixed, el_Z, el_N, el_lng, el_C):
     """Free electrons per gram over rho (the fixed ones plus sum N zbar) and its eta-partial."""
-    sp = max(eta, 0.0) + math.log1p(math.exp(-abs(eta)))          # softplus, no overflow
-    dsp = 0.5 * (1.0 + math.tanh(0.5 * eta))
+    e = math.exp(-abs(eta))
+    sp = max(eta, 0.0) + math.log1p(e)          # softplus, no overflow
+    dsp = 1.0 / (1.0 + e) if eta >= 0.0 else e / (1.0 + e)       # its derivative, 1 / (1 + e^-eta)
     zsum = fixed
     zeta = 0.0
     for k in range(el_Z.size):
-        zb, dz = _zbar(el_Z[k], el_g[k], el_C[k], eta, kT, gb, gone, sp, dsp)
+        zb, dz = _zbar(el_Z[k], el_lng[k], el_C[k], eta, kT, gb, gone, sp, dsp)
         zsum += el_N[k] * zb
         zeta += el_N[k] * dz
     return zsum, zeta
 
 
 @njit(cache=True, error_model="numpy")
-def _start(lnn_full, lo, rho, T, fixed, el_Z, el_N, el_g, el_C, kT, gb, gone):
+def _start(lnn_full, lo, rho, T, fixed, el_Z, el_N, el_lng, el_C, kT, gb, gone):
     """A starting ln n_e: the same equation with non-degenerate, non-relativistic electrons,
     eta = ln(n_e / n_Q(T)), solved by cheap Newton steps (no table reads). Where that start would be
     degenerate (eta > -1) the classical eta is no guide: start from full ionization, as the numpy path does."""
@@ -116,7 +117,7 @@ def _start(lnn_full, lo, rho, T, fixed, el_Z, el_N, el_g, el_C, kT, gb, gone):
         eta = y - lnQ
         if eta > -1.0:
             return lnn_full
-        zsum, zeta = _charge(eta, kT, gb, gone, fixed, el_Z, el_N, el_g, el_C)
+        zsum, zeta = _charge(eta, kT, gb, gone, fixed, el_Z, el_N, el_lng, el_C)
         phi = y - math.log(rho * zsum)
         new = y - min(max(phi / (1.0 - zeta / zsum), -40.0), 40.0)
         new = min(max(new, lo), lnn_full)
@@ -127,7 +128,7 @@ def _start(lnn_full, lo, rho, T, fixed, el_Z, el_N, el_g, el_C, kT, gb, gone):
 
 
 @njit(cache=True, error_model="numpy")
-def _one(lnn_full, rho, T, fixed, el_Z, el_N, el_g, el_C, tab, pairs, buf):
+def _one(lnn_full, rho, T, fixed, el_Z, el_N, el_lng, el_C, tab, pairs, buf):
     """Root y = ln n_e at one point; returns (y, ok, fresh): fresh if buf holds the gas at exp(y)."""
     kT = _K * T
     s_rho = _PACK * math.exp(lnn_full)
@@ -137,13 +138,13 @@ def _one(lnn_full, rho, T, fixed, el_Z, el_N, el_g, el_C, tab, pairs, buf):
     gb = 0.0 if gone else b / (1.0 - b)
     hi = lnn_full
     lo = math.log(rho * fixed) if fixed > 0.0 else -math.inf
-    y = _start(lnn_full, lo, rho, T, fixed, el_Z, el_N, el_g, el_C, kT, gb, gone)
+    y = _start(lnn_full, lo, rho, T, fixed, el_Z, el_N, el_lng, el_C, kT, gb, gone)
     fresh = False
     lo_seen = False
     for _ in range(_MAX_ITER):
         if not electron_point(math.exp(y), T, tab, buf):
             return y, False, False
-        zsum, zeta = _charge(buf[0], kT, gb, gone, fixed, el_Z, el_N, el_g, el_C)
+        zsum, zeta = _charge(buf[0], kT, gb, gone, fixed, el_Z, el_N, el_lng, el_C)
         n_free = rho * zsum
         phi = y - math.log(n_free)
         if abs(phi) < _TOL:
@@ -186,10 +187,10 @@ def _one(lnn_full, rho, T, fixed, el_Z, el_N, el_g, el_C, tab, pairs, buf):
 
 
 @njit(cache=True, parallel=True, error_model="numpy")
-def _many(lnn_full, rho, T, fixed, el_Z, el_N, el_g, el_C, tab, pairs, y, ok):
+def _many(lnn_full, rho, T, fixed, el_Z, el_N, el_lng, el_C, tab, pairs, y, ok):
     buf = np.empty((rho.size, 12))
     for i in prange(rho.size):
-        y[i], ok[i], _ = _one(lnn_full[i], rho[i], T[i], fixed, el_Z, el_N, el_g, el_C, tab, pairs, buf[i])
+        y[i], ok[i], _ = _one(lnn_full[i], rho[i], T[i], fixed, el_Z, el_N, el_lng, el_C, tab, pairs, buf[i])
 
 
 @njit(cache=True, error_model="numpy")
@@ -202,7 +203,7 @@ def _positrons_negligible(eta, T, n):
 
 
 @njit(cache=True, error_model="numpy")
-def _one_state(n_full, rho, T, fixed, el_Z, el_N, el_g, el_C, tab, pairs, buf):
+def _one_state(n_full, rho, T, fixed, el_Z, el_N, el_lng, el_C, tab, pairs, buf):
     """n_e at one point and the pair-free electron gas there (into buf); returns (n_e, ok).
 
     As matter.matter does it: the gas at full ionization first; where the Saha elements give up every
@@ -218,10 +219,10 @@ def _one_state(n_full, rho, T, fixed, el_Z, el_N, el_g, el_C, tab, pairs, buf):
     b = _step_b(s)
     gone = b >= 1.0 - 1e-12
     gb = 0.0 if gone else b / (1.0 - b)
-    zsum, _ = _charge(buf[0], kT, gb, gone, fixed, el_Z, el_N, el_g, el_C)
+    zsum, _ = _charge(buf[0], kT, gb, gone, fixed, el_Z, el_N, el_lng, el_C)
     if not lnn_full - math.log(rho * zsum) > _TOL:
         return n_full, (not pairs) or _positrons_negligible(buf[0], T, n_full)
-    y, ok, fresh = _one(lnn_full, rho, T, fixed, el_Z, el_N, el_g, el_C, tab, pairs, buf)
+    y, ok, fresh = _one(lnn_full, rho, T, fixed, el_Z, el_N, el_lng, el_C, tab, pairs, buf)
     if not ok:
         return n_full, False
     n = math.exp(y)
@@ -232,7 +233,7 @@ def _one_state(n_full, rho, T, fixed, el_Z, el_N, el_g, el_C, tab, pairs, buf):
 
 
 @njit(cache=True, parallel=True, error_model="numpy")
-def _many_state(n_full, rho, T, fixed, el_Z, el_N, el_g, el_C, tab, pairs, n_e, ok, out):
+def _many_state(n_full, rho, T, fixed, el_Z, el_N, el_lng, el_C, tab, pairs, n_e, ok, out):
     # interleaved blocks: task c takes the blocks c, c + TASKS, ... of BLOCK neighbouring points (the costly
     # roots cluster in the cool rows of a map: contiguous shares per thread would be unequal; neighbouring
     # points read neighbouring table cells, so each block stays contiguous)
@@ -240,7 +241,7 @@ def _many_state(n_full, rho, T, fixed, el_Z, el_N, el_g, el_C, tab, pairs, n_e, 
     for c in prange(TASKS):
         for start in range(c * BLOCK, n, TASKS * BLOCK):
             for i in range(start, min(start + BLOCK, n)):
-                n_e[i], ok[i] = _one_state(n_full[i], rho[i], T[i], fixed, el_Z, el_N, el_g, el_C, tab, pairs,
+                n_e[i], ok[i] = _one_state(n_full[i], rho[i], T[i], fixed, el_Z, el_N, el_lng, el_C, tab, pairs,
                                            out[i])
 
 
@@ -259,7 +260,7 @@ def _element_arrays(saha, elements):
     for k, z in enumerate(zs):
         el_g[k, :z + 1] = elements[z].weights
         el_C[k, :z + 1] = elements[z].cumulative_erg
-    return el_Z, el_N, el_g, el_C
+    return el_Z, el_N, np.log(el_g), el_C          # ln g_j, read by _lnq
 
 
 @serialized
@@ -272,12 +273,12 @@ def solve_saha_state(n_full, rho, T, saha: dict, fixed: float, elements: dict, p
     :func:`~thermoplane.physics.eos.electron_kernel.electron_point` at n_e; points with ok False (outside the
     table, n below its lowest density, positrons not negligible with ``pairs``) must be solved by the numpy path.
     """
-    el_Z, el_N, el_g, el_C = _element_arrays(saha, elements)
+    el_Z, el_N, el_lng, el_C = _element_arrays(saha, elements)
     n_e = np.empty(rho.size)
     ok = np.zeros(rho.size, dtype=np.bool_)
     out = np.empty((rho.size, 12))
     _many_state(np.ascontiguousarray(n_full), np.ascontiguousarray(rho), np.ascontiguousarray(T), float(fixed),
-                el_Z, el_N, el_g, el_C, _TAB, bool(pairs), n_e, ok, out)
+                el_Z, el_N, el_lng, el_C, _TAB, bool(pairs), n_e, ok, out)
     return n_e, out, ok
 
 
@@ -290,9 +291,9 @@ def solve_saha_compiled(n_full, rho, T, saha: dict, fixed: float, elements: dict
     With ``pairs``, points whose positrons are not negligible at the root are handed back.
     Points with ok False must be solved by the numpy path.
     """
-    el_Z, el_N, el_g, el_C = _element_arrays(saha, elements)
+    el_Z, el_N, el_lng, el_C = _element_arrays(saha, elements)
     y = np.empty(rho.size)
     ok = np.zeros(rho.size, dtype=np.bool_)
-    _many(np.log(n_full), np.ascontiguousarray(rho), np.ascontiguousarray(T), float(fixed), el_Z, el_N, el_g,
+    _many(np.log(n_full), np.ascontiguousarray(rho), np.ascontiguousarray(T), float(fixed), el_Z, el_N, el_lng,
           el_C, _TAB, bool(pairs), y, ok)
     return np.exp(y), ok
