@@ -10,7 +10,9 @@ loaded side by side (``git archive REV`` into a temporary folder, imported as a 
 alternately with the current tree so that both see the same load. Further lines: the per-point quad + brentq
 electron solve (the baseline of bench_electrons.py, scaled from a few points), the compiled steps against
 their numpy counterparts, the dense-plasma terms on 1 thread and on all threads. Asserts nothing.
-Run: python tests/benchmarks/bench_eos.py [--baseline REV] [--repeat N]
+On a machine shared with other work, wall times of long calls stretch with the load while np.exp's best
+of 50 does not: ``--clock cpu --threads 1`` gives the steadier single-core figures.
+Run: python tests/benchmarks/bench_eos.py [--baseline REV] [--repeat N] [--threads N] [--clock wall|cpu]
 """
 
 import argparse
@@ -52,14 +54,14 @@ def load_revision(rev):
     return importlib.import_module(name + ".physics")
 
 
-def alternate(funs, repeat):
-    """Shortest wall time of each function, the functions called in turn ``repeat`` times (same load)."""
+def alternate(funs, repeat, clock=time.perf_counter):
+    """Shortest time of each function, the functions called in turn ``repeat`` times (same load)."""
     times = [[] for _ in funs]
     for _ in range(repeat):
         for k, f in enumerate(funs):
-            t0 = time.perf_counter()
+            t0 = clock()
             f()
-            times[k].append(time.perf_counter() - t0)
+            times[k].append(clock() - t0)
     return [min(t) for t in times]
 
 
@@ -82,7 +84,14 @@ def main(argv=None):
     ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     ap.add_argument("--baseline", default=BASELINE, help="git revision to compare with, or 'none'")
     ap.add_argument("--repeat", type=int, default=5)
+    ap.add_argument("--threads", type=int, default=0, help="numba threads (default: all)")
+    ap.add_argument("--clock", choices=("wall", "cpu"), default="wall",
+                    help="wall time, or the process's CPU time (all threads; steadier on a shared machine)")
     args = ap.parse_args(argv)
+    if args.threads:
+        import numba
+        numba.set_num_threads(args.threads)
+    clock = time.process_time if args.clock == "cpu" else time.perf_counter
     lr, lT = np.meshgrid(np.linspace(-10, 10, 400), np.linspace(3, 10, 400))
     rho, T = 10.0 ** lr, 10.0 ** lT
     comp = ph.Composition.from_xyz(0.70, 0.28, 0.02)
@@ -92,15 +101,17 @@ def main(argv=None):
     calls = {ion: stages(ph, rho, T, comp, ion) for ion in TARGETS}       # loads every table, compiles
     old_calls = {ion: stages(old, rho, T, comp, ion) for ion in TARGETS} if old is not None else None
     t_load = time.perf_counter() - t0
-    t_exp = best(lambda: np.exp(x), 50)
+    t_exp = alternate([lambda: np.exp(x)], 50, clock)[0]
     print(f"points: {rho.size}; np.exp on {rho.size} doubles: {t_exp * 1e3:.3f} ms; "
           f"first calls (table loads, compilation) {t_load:.2f} s")
-    print("exp-units per point" + (f"; baseline = revision {args.baseline}, timed alternately" if old else ""))
+    import numba
+    print(f"exp-units per point ({args.clock} clock, {numba.get_num_threads()} numba threads)"
+          + (f"; baseline = revision {args.baseline}, timed alternately" if old else ""))
     times = {}
     for ion, target in TARGETS.items():
         for stage in calls[ion]:
             funs = [calls[ion][stage]] + ([old_calls[ion][stage]] if old else [])
-            t = alternate(funs, args.repeat)
+            t = alternate(funs, args.repeat, clock)
             times[ion, stage] = t[0]
             line = f"  ionization={ion!r:7s} {stage:20s} now {t[0] / t_exp:6.0f}"
             if old:
