@@ -45,7 +45,8 @@ __all__ = ["mixture", "mixture_chosen", "mixture_free_energy", "merge_trace_spec
 
 GAMMA_LIQUID_MAX = 1000.0
 GAMMA_SOLID_MIN = 100.0
-_STRIDE = 64
+_TASKS = 64
+_BLOCK = 256
 
 
 @njit(cache=True, error_model="numpy")
@@ -133,16 +134,19 @@ def mixture_chosen(n_e, T, Z, A, x):
 @njit(cache=True, parallel=True, error_model="numpy")
 def _many(n_e, T, Z, A, x, liq, sol, ion, flag, ele, both):
     sc, xG = _constants(Z, A, x)
-    # interleaved: task k takes the points k, k + _STRIDE, ... (crystal and quantum-ion points, the costly
-    # ones, cluster in one corner of a map: contiguous blocks per thread would be unequal)
-    for k in prange(_STRIDE):
-        for i in range(k, n_e.size, _STRIDE):
-            a, b, c, d, e = _mixture(n_e[i], T[i], Z, A, x, sc, xG, both)
-            liq[:, i] = a
-            sol[:, i] = b
-            ion[:, i] = c
-            flag[i] = d
-            ele[:, i] = e
+    # interleaved blocks: task k takes the blocks k, k + _TASKS, ... of _BLOCK neighbouring points (crystal
+    # and quantum-ion points, the costly ones, cluster in one corner of a map: contiguous shares per thread
+    # would be unequal; whole blocks keep the writes to the outputs contiguous)
+    n = n_e.size
+    for k in prange(_TASKS):
+        for start in range(k * _BLOCK, n, _TASKS * _BLOCK):
+            for i in range(start, min(start + _BLOCK, n)):
+                a, b, c, d, e = _mixture(n_e[i], T[i], Z, A, x, sc, xG, both)
+                liq[:, i] = a
+                sol[:, i] = b
+                ion[:, i] = c
+                flag[i] = d
+                ele[:, i] = e
 
 
 @serialized
