@@ -321,8 +321,9 @@ def matter(rho, T, comp: Composition, electrons: str, ionization: str, pairs: bo
     Si = np.zeros_like(t)
     Si_rho = -k * N_nuc / r
     Si_T = 1.5 * k * N_nuc / t
+    ln_r, ln_lam3 = np.log(r), np.log(lam3_T)
     for N_i, A_i, Z_i in zip(per_mass, comp.A, comp.Z):   # loop over nuclides
-        ln_nL3 = np.log(r) + np.log(N_i) + np.log(lam3_T) - 1.5 * np.log(A_i)   # separate logs: N_i may be tiny
+        ln_nL3 = ln_r + np.log(N_i) + ln_lam3 - 1.5 * np.log(A_i)   # separate logs: N_i may be tiny
         st = stages.get(int(Z_i)) if (int(Z_i) == Z_i and int(Z_i) in saha) else None
         if st is None:
             Si += N_i * k * (2.5 - ln_nL3)
