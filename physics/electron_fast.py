@@ -23,7 +23,7 @@ from .electrons import ElectronGas, ElectronState
 from .eos.electron_kernel import electron_arrays, electron_point
 from .eos.parallel import serialized
 
-__all__ = ["pair_free_state"]
+__all__ = ["pair_free_state", "state_from_points"]
 
 _TAB = None
 
@@ -42,6 +42,12 @@ def _compiled(n, T) -> ElectronState:
         _TAB = electron_arrays()
     out = np.empty((n.size, 12))
     _many(n, T, _TAB, out)
+    return state_from_points(n, T, out)
+
+
+def state_from_points(n, T, out) -> ElectronState:
+    """The ElectronState at 1-d arrays n, T from the rows ``out`` (n.size, 12) of
+    :func:`~thermoplane.physics.eos.electron_kernel.electron_point` (the numpy reader's formulas)."""
     o = out.T
     eta = o[0].copy()
     deta_dn, deta_dT = o[1] / n, o[2] / T

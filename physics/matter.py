@@ -38,10 +38,10 @@ import numpy as np
 from . import constants as const
 from .composition import Composition
 from .electron_table import _merge, onset_state, table_eta, table_state
-from .electron_fast import pair_free_state
+from .electron_fast import pair_free_state, state_from_points
 from .electrons import _CN, ElectronGas, ElectronState
 from .ionization import ELEMENTS, ionization_stages
-from .saha_kernel import solve_saha_compiled
+from .saha_kernel import solve_saha_compiled, solve_saha_state
 from .thermo import Part
 
 __all__ = ["MatterResult", "matter"]
@@ -214,6 +214,29 @@ def _solve_saha(n_full, rho, T, saha, fixed, electrons, pairs):
     return np.exp(y)
 
 
+def _saha_density(n_full, r, t, saha, fixed, electrons, pairs):
+    """n_e and the electron gas there by the numpy passes: n_full where the gas at n_full leaves nothing
+    bound (that gas is kept), the Saha root elsewhere (compiled where the pair-free table holds it,
+    :func:`_solve_saha` for the rest) and the gas at the root."""
+    n_e = n_full.copy()
+    st_full = electrons_at(n_full, t, electrons, pairs)
+    n_free0 = _free_electrons(_stages(saha, st_full.eta, t, n_full), saha, fixed, r)[0]
+    incomplete = np.flatnonzero(np.log(n_full) - np.log(n_free0) > _NEWTON_TOL)
+    if incomplete.size == 0:
+        return n_e, st_full
+    todo = incomplete
+    if electrons == "fermi":
+        n_c, ok = solve_saha_compiled(n_full[todo], r[todo], t[todo], saha, fixed, ELEMENTS, pairs)
+        n_e[todo[ok]] = n_c[ok]
+        todo = todo[~ok]
+    if todo.size:
+        n_e[todo] = _solve_saha(n_full[todo], r[todo], t[todo], saha, fixed, electrons, pairs)
+    solved = np.zeros(n_e.size, dtype=bool)
+    solved[incomplete] = True
+    return n_e, _merge(n_e.size, [(~solved, lambda nn, tt: _subset(st_full, ~solved)),
+                                  (solved, lambda nn, tt: electrons_at(nn, tt, electrons, pairs))], n_e, t)
+
+
 def matter(rho, T, comp: Composition, electrons: str, ionization: str, pairs: bool) -> MatterResult:
     """Electrons + ions in ionization equilibrium at (rho, T), with exact derivatives.
 
@@ -238,24 +261,25 @@ def matter(rho, T, comp: Composition, electrons: str, ionization: str, pairs: bo
     N_full = float(np.sum(comp.X * comp.Z / (comp.A * const.m_u)))
     n_full = r * N_full
 
-    # 1. the free-electron density: n_full where ionization is complete, Saha elsewhere
-    n_e = n_full.copy()
-    if saha:
-        st_full = electrons_at(n_full, t, electrons, pairs)
-        n_free0 = _free_electrons(_stages(saha, st_full.eta, t, n_full), saha, fixed, r)[0]
-        incomplete = np.flatnonzero(np.log(n_full) - np.log(n_free0) > _NEWTON_TOL)
-        if incomplete.size and electrons == "fermi":
-            # compiled per point where the pair-free table holds the root; the numpy passes for the rest
-            n_c, ok = solve_saha_compiled(n_full[incomplete], r[incomplete], t[incomplete], saha, fixed,
-                                          ELEMENTS, pairs)
-            n_e[incomplete[ok]] = n_c[ok]
-            incomplete = incomplete[~ok]
-        if incomplete.size:
-            n_e[incomplete] = _solve_saha(n_full[incomplete], r[incomplete], t[incomplete],
-                                          saha, fixed, electrons, pairs)
+    # 1. the free-electron density: n_full where ionization is complete, Saha elsewhere; and the electron gas
+    #    there. Fermi electrons: one compiled pass per point (physics.saha_kernel.solve_saha_state) where the
+    #    pair-free table holds the point; the numpy passes for the rest (positrons, outside the table)
+    if saha and electrons == "fermi":
+        n_e, buf, ok = solve_saha_state(n_full, r, t, saha, fixed, ELEMENTS, pairs)
+        rest = np.flatnonzero(~ok)
+        if rest.size == 0:
+            es = state_from_points(n_e, t, buf)
+        else:
+            n_e[rest], es_rest = _saha_density(n_full[rest], r[rest], t[rest], saha, fixed, electrons, pairs)
+            es = _merge(n_e.size, [(ok, lambda nn, tt: state_from_points(nn, tt, buf[ok])),
+                                   (~ok, lambda nn, tt: es_rest)], n_e, t)
+    elif saha:
+        n_e, es = _saha_density(n_full, r, t, saha, fixed, electrons, pairs)
+    else:
+        n_e = n_full.copy()
+        es = electrons_at(n_e, t, electrons, pairs)
     # 2. everything at the solved density, with partials (implicit differentiation of
     #    G(n; rho, T) = n - n_free(eta(n, T), T, rho) = 0)
-    es = electrons_at(n_e, t, electrons, pairs)
     eta = es.eta
     stages = _stages(saha, eta, t, n_full)
     n_free, nf_eta, nf_T, nf_ln = _free_electrons(stages, saha, fixed, r)
@@ -297,8 +321,9 @@ def matter(rho, T, comp: Composition, electrons: str, ionization: str, pairs: bo
     Si = np.zeros_like(t)
     Si_rho = -k * N_nuc / r
     Si_T = 1.5 * k * N_nuc / t
+    ln_r, ln_lam3 = np.log(r), np.log(lam3_T)
     for N_i, A_i, Z_i in zip(per_mass, comp.A, comp.Z):   # loop over nuclides
-        ln_nL3 = np.log(r) + np.log(N_i) + np.log(lam3_T) - 1.5 * np.log(A_i)   # separate logs: N_i may be tiny
+        ln_nL3 = ln_r + np.log(N_i) + ln_lam3 - 1.5 * np.log(A_i)   # separate logs: N_i may be tiny
         st = stages.get(int(Z_i)) if (int(Z_i) == Z_i and int(Z_i) in saha) else None
         if st is None:
             Si += N_i * k * (2.5 - ln_nL3)

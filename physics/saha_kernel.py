@@ -5,12 +5,14 @@ ln n_e = ln n_free(eta(n_e, T)), when hydrogen and helium follow the Saha equati
 ionization rule of :mod:`thermoplane.physics.ionization`?
 
 It is the same equation, bracket and safeguarded Newton steps as ``matter._solve_saha`` (which stays for
-the points this kernel hands back), run per point inside numba instead of as whole-array numpy passes:
+the points this kernel hands back; one difference: a Newton step onto the unevaluated lower bound is taken
+here, not bisected, see :func:`_one`), run per point inside numba instead of as whole-array numpy passes:
 the electron gas is the pair-free table read by :func:`~thermoplane.physics.eos.electron_kernel.electron_point`
 (agreeing with the numpy table to rounding), and the stage fractions are those of
 :func:`~thermoplane.physics.ionization.ionization_stages` written for one point. Only the root n_e comes
-from here; every thermodynamic quantity is then formed at that root by the numpy code, so nothing
-downstream changes but the last bits of n_e (the tolerance of both solvers is 1e-13 in ln n_e).
+from here (:func:`solve_saha_compiled`), or the root and the pair-free gas there in one pass per point
+(:func:`solve_saha_state`, what ``matter.matter`` uses); the rest is formed at that root by the numpy code,
+so nothing downstream changes but the last bits of n_e (the tolerance of both solvers is 1e-13 in ln n_e).
 
 A point is handed back (``ok`` False) where the table does not hold it (T outside the table, or a root
 below its lowest density, 1e4 cm^-3, where the numpy state uses the exact quadrature) or where positrons are
@@ -30,7 +32,7 @@ from .eos.electron_kernel import electron_arrays, electron_point
 from .eos.parallel import serialized
 from .ionization import MARGIN, S_COMPLETE, S_ONSET, THERMAL_DESTRUCTION_T, BOHR_RADIUS
 
-__all__ = ["solve_saha_compiled"]
+__all__ = ["solve_saha_compiled", "solve_saha_state"]
 
 _K = const.k_B
 _THETA = const.k_B / const.m_e_c2
@@ -38,6 +40,9 @@ _LN_NQ0 = math.log(2.0) + 1.5 * math.log(2.0 * math.pi * const.m_e * const.k_B /
 _PACK = (4.0 * math.pi / 3.0) * BOHR_RADIUS**3
 _WIDTH = math.log(S_COMPLETE / S_ONSET)
 _TOL = 1e-13
+#: interleaved tasks and their blocks of points in the parallel loop of _many_state
+TASKS = 64
+BLOCK = 256
 _MAX_ITER = 80
 
 
@@ -55,7 +60,7 @@ def _step_b(s):
 
 
 @njit(cache=True, error_model="numpy")
-def _lnq(j, Zi, g, C, eta, kT, gb, gone, sp, dsp):
+def _lnq(j, Zi, lng, C, eta, kT, gb, gone, sp, dsp):
     """ln q_j of stage j and its eta-partial (ionization_stages, one point)."""
     if j == Zi:                       # the bare nucleus is never destroyed
         lnw = 0.0
@@ -67,15 +72,15 @@ def _lnq(j, Zi, g, C, eta, kT, gb, gone, sp, dsp):
         depth = (C[Zi] - C[j]) / kT + (Zi - j) * (sp + MARGIN)
         lnw = -gb * depth
         dw = -gb * (Zi - j) * dsp
-    return math.log(g[j]) + lnw - j * eta - C[j] / kT, dw - j
+    return lng[j] + lnw - j * eta - C[j] / kT, dw - j
 
 
 @njit(cache=True, error_model="numpy")
-def _zbar(Zi, g, C, eta, kT, gb, gone, sp, dsp):
+def _zbar(Zi, lng, C, eta, kT, gb, gone, sp, dsp):
     """Mean charge of an element with Zi <= 2 and its eta-partial at fixed T and rho (no allocation)."""
-    l0, d0 = _lnq(0, Zi, g, C, eta, kT, gb, gone, sp, dsp)
-    l1, d1 = _lnq(1, Zi, g, C, eta, kT, gb, gone, sp, dsp)
-    l2, d2 = (_lnq(2, Zi, g, C, eta, kT, gb, gone, sp, dsp) if Zi == 2 else (-math.inf, 0.0))
+    l0, d0 = _lnq(0, Zi, lng, C, eta, kT, gb, gone, sp, dsp)
+    l1, d1 = _lnq(1, Zi, lng, C, eta, kT, gb, gone, sp, dsp)
+    l2, d2 = (_lnq(2, Zi, lng, C, eta, kT, gb, gone, sp, dsp) if Zi == 2 else (-math.inf, 0.0))
     top = max(l0, max(l1, l2))
     q0 = math.exp(l0 - top)
     q1 = math.exp(l1 - top)
@@ -87,21 +92,22 @@ def _zbar(Zi, g, C, eta, kT, gb, gone, sp, dsp):
 
 
 @njit(cache=True, error_model="numpy")
-def _charge(eta, kT, gb, gone, fixed, el_Z, el_N, el_g, el_C):
+def _charge(eta, kT, gb, gone, fixed, el_Z, el_N, el_lng, el_C):
     """Free electrons per gram over rho (the fixed ones plus sum N zbar) and its eta-partial."""
-    sp = max(eta, 0.0) + math.log1p(math.exp(-abs(eta)))          # softplus, no overflow
-    dsp = 0.5 * (1.0 + math.tanh(0.5 * eta))
+    e = math.exp(-abs(eta))
+    sp = max(eta, 0.0) + math.log1p(e)          # softplus, no overflow
+    dsp = 1.0 / (1.0 + e) if eta >= 0.0 else e / (1.0 + e)       # its derivative, 1 / (1 + e^-eta)
     zsum = fixed
     zeta = 0.0
     for k in range(el_Z.size):
-        zb, dz = _zbar(el_Z[k], el_g[k], el_C[k], eta, kT, gb, gone, sp, dsp)
+        zb, dz = _zbar(el_Z[k], el_lng[k], el_C[k], eta, kT, gb, gone, sp, dsp)
         zsum += el_N[k] * zb
         zeta += el_N[k] * dz
     return zsum, zeta
 
 
 @njit(cache=True, error_model="numpy")
-def _start(lnn_full, lo, rho, T, fixed, el_Z, el_N, el_g, el_C, kT, gb, gone):
+def _start(lnn_full, lo, rho, T, fixed, el_Z, el_N, el_lng, el_C, kT, gb, gone):
     """A starting ln n_e: the same equation with non-degenerate, non-relativistic electrons,
     eta = ln(n_e / n_Q(T)), solved by cheap Newton steps (no table reads). Where that start would be
     degenerate (eta > -1) the classical eta is no guide: start from full ionization, as the numpy path does."""
@@ -111,7 +117,7 @@ def _start(lnn_full, lo, rho, T, fixed, el_Z, el_N, el_g, el_C, kT, gb, gone):
         eta = y - lnQ
         if eta > -1.0:
             return lnn_full
-        zsum, zeta = _charge(eta, kT, gb, gone, fixed, el_Z, el_N, el_g, el_C)
+        zsum, zeta = _charge(eta, kT, gb, gone, fixed, el_Z, el_N, el_lng, el_C)
         phi = y - math.log(rho * zsum)
         new = y - min(max(phi / (1.0 - zeta / zsum), -40.0), 40.0)
         new = min(max(new, lo), lnn_full)
@@ -122,8 +128,8 @@ def _start(lnn_full, lo, rho, T, fixed, el_Z, el_N, el_g, el_C, kT, gb, gone):
 
 
 @njit(cache=True, error_model="numpy")
-def _one(lnn_full, rho, T, fixed, el_Z, el_N, el_g, el_C, tab, pairs, buf):
-    """Root y = ln n_e at one point; returns (y, ok)."""
+def _one(lnn_full, rho, T, fixed, el_Z, el_N, el_lng, el_C, tab, pairs, buf):
+    """Root y = ln n_e at one point; returns (y, ok, fresh): fresh if buf holds the gas at exp(y)."""
     kT = _K * T
     s_rho = _PACK * math.exp(lnn_full)
     s = s_rho + (T / THERMAL_DESTRUCTION_T) ** 4
@@ -132,64 +138,117 @@ def _one(lnn_full, rho, T, fixed, el_Z, el_N, el_g, el_C, tab, pairs, buf):
     gb = 0.0 if gone else b / (1.0 - b)
     hi = lnn_full
     lo = math.log(rho * fixed) if fixed > 0.0 else -math.inf
-    y = _start(lnn_full, lo, rho, T, fixed, el_Z, el_N, el_g, el_C, kT, gb, gone)
+    y = _start(lnn_full, lo, rho, T, fixed, el_Z, el_N, el_lng, el_C, kT, gb, gone)
+    fresh = False
+    lo_seen = False
     for _ in range(_MAX_ITER):
         if not electron_point(math.exp(y), T, tab, buf):
-            return y, False
-        zsum, zeta = _charge(buf[0], kT, gb, gone, fixed, el_Z, el_N, el_g, el_C)
+            return y, False, False
+        zsum, zeta = _charge(buf[0], kT, gb, gone, fixed, el_Z, el_N, el_lng, el_C)
         n_free = rho * zsum
         phi = y - math.log(n_free)
         if abs(phi) < _TOL:
+            fresh = True
             break
         slope = 1.0 - zeta / zsum * buf[1]
         if phi > 0.0:
             hi = y
         else:
             lo = y
+            lo_seen = True
         step = min(max(phi / slope, -40.0), 40.0)
         new = y - step
-        if new <= lo or new >= hi:
+        # a step onto the initial lower bound ln(rho N_fixed), not yet evaluated, is taken: there the Saha
+        # elements give up (almost) nothing (cold matter, H and He neutral), the Newton step lands exactly on
+        # it, and the root lies within rounding above it (bisecting towards it took ~45 table reads)
+        onto_bound = new == lo and not lo_seen
+        if (new <= lo and not onto_bound) or new >= hi:
             new = 0.5 * (lo + hi) if math.isfinite(lo) else hi - 40.0
         if abs(new - y) < 1e-14 * max(1.0, abs(y)):
             y = new
+            fresh = False
             break
         y = new
     else:
-        return y, False
+        return y, False, False
     if y < tab[7]:
         # below the table's lower edge the compiled reader scales the edge as a Boltzmann gas, the numpy
         # state uses the exact quadrature (they differ by ~1e-9 in eta): the numpy path solves these points
-        return y, False
+        return y, False, False
     if not pairs:
-        return y, True
+        return y, True, fresh
     # positrons at the root, bounded above as matter._positron_bound does
     theta = _THETA * T
     eta_plus = min(-buf[0] - 2.0 / theta, 0.0)
     G = 0.8862269 * (1.0 + 0.375 * theta) + theta * 1.3293404 * (1.0 + 0.625 * theta)
     if _CN * theta**1.5 * math.exp(eta_plus) * G > 1e-10 * math.exp(y):
-        return y, False
-    return y, True
+        return y, False, False
+    return y, True, fresh
 
 
 @njit(cache=True, parallel=True, error_model="numpy")
-def _many(lnn_full, rho, T, fixed, el_Z, el_N, el_g, el_C, tab, pairs, y, ok):
+def _many(lnn_full, rho, T, fixed, el_Z, el_N, el_lng, el_C, tab, pairs, y, ok):
     buf = np.empty((rho.size, 12))
     for i in prange(rho.size):
-        y[i], ok[i] = _one(lnn_full[i], rho[i], T[i], fixed, el_Z, el_N, el_g, el_C, tab, pairs, buf[i])
+        y[i], ok[i], _ = _one(lnn_full[i], rho[i], T[i], fixed, el_Z, el_N, el_lng, el_C, tab, pairs, buf[i])
+
+
+@njit(cache=True, error_model="numpy")
+def _positrons_negligible(eta, T, n):
+    """matter._positron_bound(eta, T) <= NEGLIGIBLE_POSITRONS n at one point."""
+    theta = _THETA * T
+    eta_plus = min(-eta - 2.0 / theta, 0.0)
+    G = 0.8862269 * (1.0 + 0.375 * theta) + theta * 1.3293404 * (1.0 + 0.625 * theta)
+    return not (_CN * theta**1.5 * math.exp(eta_plus) * G > 1e-10 * n)
+
+
+@njit(cache=True, error_model="numpy")
+def _one_state(n_full, rho, T, fixed, el_Z, el_N, el_lng, el_C, tab, pairs, buf):
+    """n_e at one point and the pair-free electron gas there (into buf); returns (n_e, ok).
+
+    As matter.matter does it: the gas at full ionization first; where the Saha elements give up every
+    electron there (ln n_full - ln n_free < 1e-13) n_e = n_full, else the root of :func:`_one`. ok is False
+    where the numpy path must take the point (outside the table, below its lowest density, positrons).
+    """
+    ln0 = tab[7]
+    lnn_full = math.log(n_full)
+    if lnn_full < ln0 or not electron_point(n_full, T, tab, buf):
+        return n_full, False
+    kT = _K * T
+    s = _PACK * n_full + (T / THERMAL_DESTRUCTION_T) ** 4
+    b = _step_b(s)
+    gone = b >= 1.0 - 1e-12
+    gb = 0.0 if gone else b / (1.0 - b)
+    zsum, _ = _charge(buf[0], kT, gb, gone, fixed, el_Z, el_N, el_lng, el_C)
+    if not lnn_full - math.log(rho * zsum) > _TOL:
+        return n_full, (not pairs) or _positrons_negligible(buf[0], T, n_full)
+    y, ok, fresh = _one(lnn_full, rho, T, fixed, el_Z, el_N, el_lng, el_C, tab, pairs, buf)
+    if not ok:
+        return n_full, False
+    n = math.exp(y)
+    # buf holds the gas at exp(y) unless the last Newton step was taken without a new evaluation
+    if not fresh and not electron_point(n, T, tab, buf):
+        return n_full, False
+    return n, True
+
+
+@njit(cache=True, parallel=True, error_model="numpy")
+def _many_state(n_full, rho, T, fixed, el_Z, el_N, el_lng, el_C, tab, pairs, n_e, ok, out):
+    # interleaved blocks: task c takes the blocks c, c + TASKS, ... of BLOCK neighbouring points (the costly
+    # roots cluster in the cool rows of a map: contiguous shares per thread would be unequal; neighbouring
+    # points read neighbouring table cells, so each block stays contiguous)
+    n = rho.size
+    for c in prange(TASKS):
+        for start in range(c * BLOCK, n, TASKS * BLOCK):
+            for i in range(start, min(start + BLOCK, n)):
+                n_e[i], ok[i] = _one_state(n_full[i], rho[i], T[i], fixed, el_Z, el_N, el_lng, el_C, tab, pairs,
+                                           out[i])
 
 
 _TAB = None
 
 
-@serialized
-def solve_saha_compiled(n_full, rho, T, saha: dict, fixed: float, elements: dict, pairs: bool = True):
-    """n_e and a mask of the points solved, for 1-d arrays n_full, rho, T (cm^-3, g cm^-3, K).
-
-    ``saha`` maps Z to nuclei per gram of the Saha elements, ``fixed`` is the electrons per gram of the
-    fully ionized rest, ``elements`` maps Z to :class:`~thermoplane.physics.ionization.Element`.
-    With ``pairs``, points whose positrons are not negligible at the root are handed back.
-    Points with ok False must be solved by the numpy path.
-    """
+def _element_arrays(saha, elements):
     global _TAB
     if _TAB is None:
         _TAB = electron_arrays()
@@ -201,8 +260,40 @@ def solve_saha_compiled(n_full, rho, T, saha: dict, fixed: float, elements: dict
     for k, z in enumerate(zs):
         el_g[k, :z + 1] = elements[z].weights
         el_C[k, :z + 1] = elements[z].cumulative_erg
+    return el_Z, el_N, np.log(el_g), el_C          # ln g_j, read by _lnq
+
+
+@serialized
+def solve_saha_state(n_full, rho, T, saha: dict, fixed: float, elements: dict, pairs: bool = True):
+    """n_e, the pair-free electron gas there, and a mask of the points done, for 1-d arrays n_full, rho, T.
+
+    One pass per point: the gas at n_full, the completeness test of ``matter.matter`` (ln n_full -
+    ln n_free(eta(n_full)) > 1e-13 means incomplete), the Saha root where incomplete (:func:`solve_saha_compiled`'s
+    steps) and the gas at the root. Returns (n_e, out, ok): ``out`` (points, 12) in the layout of
+    :func:`~thermoplane.physics.eos.electron_kernel.electron_point` at n_e; points with ok False (outside the
+    table, n below its lowest density, positrons not negligible with ``pairs``) must be solved by the numpy path.
+    """
+    el_Z, el_N, el_lng, el_C = _element_arrays(saha, elements)
+    n_e = np.empty(rho.size)
+    ok = np.zeros(rho.size, dtype=np.bool_)
+    out = np.empty((rho.size, 12))
+    _many_state(np.ascontiguousarray(n_full), np.ascontiguousarray(rho), np.ascontiguousarray(T), float(fixed),
+                el_Z, el_N, el_lng, el_C, _TAB, bool(pairs), n_e, ok, out)
+    return n_e, out, ok
+
+
+@serialized
+def solve_saha_compiled(n_full, rho, T, saha: dict, fixed: float, elements: dict, pairs: bool = True):
+    """n_e and a mask of the points solved, for 1-d arrays n_full, rho, T (cm^-3, g cm^-3, K).
+
+    ``saha`` maps Z to nuclei per gram of the Saha elements, ``fixed`` is the electrons per gram of the
+    fully ionized rest, ``elements`` maps Z to :class:`~thermoplane.physics.ionization.Element`.
+    With ``pairs``, points whose positrons are not negligible at the root are handed back.
+    Points with ok False must be solved by the numpy path.
+    """
+    el_Z, el_N, el_lng, el_C = _element_arrays(saha, elements)
     y = np.empty(rho.size)
     ok = np.zeros(rho.size, dtype=np.bool_)
-    _many(np.log(n_full), np.ascontiguousarray(rho), np.ascontiguousarray(T), float(fixed), el_Z, el_N, el_g,
+    _many(np.log(n_full), np.ascontiguousarray(rho), np.ascontiguousarray(T), float(fixed), el_Z, el_N, el_lng,
           el_C, _TAB, bool(pairs), y, ok)
     return np.exp(y), ok

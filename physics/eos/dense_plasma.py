@@ -31,38 +31,61 @@ from numba import njit, prange
 from .. import constants as const
 from ..thermo import Part
 from . import jet
-from .electron_xc import electron_xc
+from .electron_xc import electron_xc_core
 from .parallel import serialized
-from .ion_liquid import liquid_ion
-from .ion_solid import solid_ion
-from .plasma_parameters import coupling
-from .screening import screening_ion
+from .ion_liquid import ETA_SERIES, liquid_core, ocp_liquid
+from .ion_solid import harmonic, solid_core
+from .plasma_parameters import point_scales, species_constants, species_jets
+from .screening import electron_q2, screening_core
+
+_MC2 = const.m_e * const.c**2
+_PF0 = const.hbar * (3.0 * math.pi**2) ** (1.0 / 3.0) / (const.m_e * const.c)   # x = _PF0 n_e^(1/3)
 
 __all__ = ["mixture", "mixture_chosen", "mixture_free_energy", "merge_trace_species", "dense_parts", "GAMMA_LIQUID_MAX", "GAMMA_SOLID_MIN", "mixture_plasma_temperature"]
 
 GAMMA_LIQUID_MAX = 1000.0
 GAMMA_SOLID_MIN = 100.0
+_TASKS = 64
+_BLOCK = 256
 
 
-@njit(cache=True)
-def _mixture(n_e, T, Z, A, x, both):
-    g_mean = 0.0
-    for i in range(Z.size):
-        if x[i] > 0.0:
-            g_mean += x[i] * coupling(n_e, T, Z[i])[0]
+@njit(cache=True, error_model="numpy")
+def _mixture(n_e, T, Z, A, x, sc, xG, both):
+    """One point. ``sc`` = species_constants(Z, A), ``xG`` = sum_i x_i Z_i^(5/3).
+
+    What depends on the electrons alone (ln n_e, ln T, Gamma and eta of Z = A = 1, p_F, the screening's
+    k_e, the exchange-correlation) is formed once and scaled per species; f_harm(eta) is shared by the
+    liquid and the solid of a species.
+    """
+    scales = point_scales(n_e, T)
+    ln_n = scales[0]
+    g_mean = scales[2] * xG
     need_solid = both or g_mean >= GAMMA_SOLID_MIN
     need_liquid = both or g_mean <= GAMMA_LIQUID_MAX
     nan = math.nan
     liq = jet.const(0.0) if need_liquid else jet.const(nan)
     sol = jet.const(0.0) if need_solid else jet.const(nan)
+    # electrons: x = p_F / (m_e c), eps = sqrt(1 + x^2), E_d (screening) and the screening's q^2 / Z^(2/3)
+    xj = jet.loglin(_PF0 * math.exp(ln_n / 3.0), 1.0 / 3.0, 0.0)
+    x2 = jet.sq(xj)
+    eps = jet.sqrt(jet.addc(x2, 1.0))
+    Ed = jet.scale(jet.div(x2, eps), _MC2 / 3.0)
+    q2e = electron_q2(ln_n, T, Ed)
+    # f_OCP at Gamma_e: the electrons' classical correlation, and hydrogen's (Z = 1) liquid
+    G1 = jet.loglin(scales[2], 1.0 / 3.0, -1.0)
+    ocp1 = ocp_liquid(G1)
     for i in range(Z.size):
         if x[i] <= 0.0:
             continue
-        sc = screening_ion(n_e, T, Z[i], A[i])
+        G, eta, f_id = species_jets(scales, sc, i)
+        sc_i = screening_core(G, jet.scale(q2e, sc[3, i]))
+        quantum_ions = eta[0] >= ETA_SERIES
+        harm = harmonic(eta) if (need_solid or quantum_ions) else jet.const(0.0)
         if need_liquid:
-            liq = jet.add(liq, jet.scale(jet.add(liquid_ion(n_e, T, Z[i], A[i]), sc), x[i]))
+            ocp = ocp1 if sc[0, i] == 1.0 else ocp_liquid(G)
+            liq = jet.add(liq, jet.scale(jet.add(liquid_core(G, eta, f_id, harm, ocp), sc_i), x[i]))
         if need_solid:
-            sol = jet.add(sol, jet.scale(jet.add(solid_ion(n_e, T, Z[i], A[i]), sc), x[i]))
+            sol = jet.add(sol, jet.scale(jet.add(solid_core(G, eta, f_id, harm), sc_i), x[i]))
     # the margin f_solid - f_liquid, kept away from zero where a phase is no candidate, so that its sign is
     # the phase and its zero the melting line (no spurious zeros at the candidacy limits)
     if g_mean < GAMMA_SOLID_MIN:
@@ -72,10 +95,21 @@ def _mixture(n_e, T, Z, A, x, both):
     else:
         margin = sol[0] - liq[0]
     ion = sol if margin < 0.0 else liq
-    return liq, sol, ion, margin, electron_xc(n_e, T, 1.0, 1.0)
+    xc = electron_xc_core(xj, x2, eps, jet.loglin(const.k_B * T, 0.0, 1.0), ocp1)
+    return liq, sol, ion, margin, xc
 
 
-@njit(cache=True)
+@njit(cache=True, error_model="numpy")
+def _constants(Z, A, x):
+    sc = species_constants(Z, A)
+    xG = 0.0
+    for i in range(Z.size):
+        if x[i] > 0.0:
+            xG += x[i] * sc[0, i]
+    return sc, xG
+
+
+@njit(cache=True, error_model="numpy")
 def mixture(n_e, T, Z, A, x):
     """Liquid and solid sums, the chosen phase, and the electron exchange-correlation at one point.
 
@@ -84,26 +118,35 @@ def mixture(n_e, T, Z, A, x):
     with screening), margin = f_solid - f_liquid per ion (< 0 where the crystal wins; pushed to at least
     0.1 in size where one phase is no candidate), and the exchange-correlation jet per electron.
     """
-    return _mixture(n_e, T, Z, A, x, True)
+    sc, xG = _constants(Z, A, x)
+    return _mixture(n_e, T, Z, A, x, sc, xG, True)
 
 
-@njit(cache=True)
+@njit(cache=True, error_model="numpy")
 def mixture_chosen(n_e, T, Z, A, x):
     """As :func:`mixture`, but a phase that is no candidate (mean Gamma < GAMMA_SOLID_MIN for the crystal,
     > GAMMA_LIQUID_MAX for the liquid) is not computed: its jet is NaN and the margin is +1 or -1 there.
     The equation of state uses this (half the cost over most of the plane)."""
-    return _mixture(n_e, T, Z, A, x, False)
+    sc, xG = _constants(Z, A, x)
+    return _mixture(n_e, T, Z, A, x, sc, xG, False)
 
 
-@njit(cache=True, parallel=True)
+@njit(cache=True, parallel=True, error_model="numpy")
 def _many(n_e, T, Z, A, x, liq, sol, ion, flag, ele, both):
-    for i in prange(n_e.size):
-        a, b, c, d, e = _mixture(n_e[i], T[i], Z, A, x, both)
-        liq[:, i] = a
-        sol[:, i] = b
-        ion[:, i] = c
-        flag[i] = d
-        ele[:, i] = e
+    sc, xG = _constants(Z, A, x)
+    # interleaved blocks: task k takes the blocks k, k + _TASKS, ... of _BLOCK neighbouring points (crystal
+    # and quantum-ion points, the costly ones, cluster in one corner of a map: contiguous shares per thread
+    # would be unequal; whole blocks keep the writes to the outputs contiguous)
+    n = n_e.size
+    for k in prange(_TASKS):
+        for start in range(k * _BLOCK, n, _TASKS * _BLOCK):
+            for i in range(start, min(start + _BLOCK, n)):
+                a, b, c, d, e = _mixture(n_e[i], T[i], Z, A, x, sc, xG, both)
+                liq[:, i] = a
+                sol[:, i] = b
+                ion[:, i] = c
+                flag[i] = d
+                ele[:, i] = e
 
 
 @serialized

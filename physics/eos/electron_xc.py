@@ -43,7 +43,7 @@ from . import jet
 from .ion_liquid import ocp_liquid
 from .plasma_parameters import coupling
 
-__all__ = ["exchange_energy_T0", "exchange_T0", "electron_xc", "electron_xc_free_energy"]
+__all__ = ["exchange_energy_T0", "exchange_T0", "electron_xc", "electron_xc_core", "electron_xc_free_energy"]
 
 _MC2 = const.m_e * const.c**2
 _KC = const.m_e * const.c / const.hbar
@@ -52,22 +52,31 @@ _BOHR = const.hbar**2 / (const.m_e * const.e_esu**2)
 _HARTREE = const.e_esu**2 / _BOHR
 _CA = (math.log(2.0) - 1.0) / (2.0 * math.pi**2)
 _CB = 20.4562557
+#: 1 / r_s over x: r_s = (3 / (4 pi n_e))^(1/3) / a_0 and x = _PF0 n_e^(1/3)
+_IRS_X = _BOHR / ((3.0 / (4.0 * math.pi)) ** (1.0 / 3.0) * _PF0)
 
 
-@njit(cache=True)
-def _phi(x):
-    """x^4 - (3/2)(x eps - asinh x)^2 as a jet; series for small x (cancellation)."""
-    x2 = jet.mul(x, x)
-    x4 = jet.mul(x2, x2)
+@njit(cache=True, error_model="numpy")
+def _phi_shared(x, x2, eps):
+    """x^4 - (3/2)(x eps - asinh x)^2 as a jet, given x, x^2 and eps = sqrt(1 + x^2) as jets; series for
+    small x (cancellation)."""
+    x4 = jet.sq(x2)
     if x[0] < 1e-2:
         x3 = jet.mul(x2, x)
         d = jet.mul(x3, jet.addc(jet.mul(x2, jet.addc(jet.scale(x2, 0.10714285714285714), -0.2)), 2.0 / 3.0))
     else:
-        d = jet.sub(jet.mul(x, jet.sqrt(jet.addc(x2, 1.0))), jet.asinh(x))
-    return jet.sub(x4, jet.scale(jet.mul(d, d), 1.5))
+        d = jet.sub(jet.mul(x, eps), jet.asinh(x))
+    return jet.sub(x4, jet.scale(jet.sq(d), 1.5))
 
 
-@njit(cache=True)
+@njit(cache=True, error_model="numpy")
+def _phi(x):
+    """x^4 - (3/2)(x eps - asinh x)^2 as a jet; series for small x (cancellation)."""
+    x2 = jet.mul(x, x)
+    return _phi_shared(x, x2, jet.sqrt(jet.addc(x2, 1.0)))
+
+
+@njit(cache=True, error_model="numpy")
 def exchange_T0(n_e):
     """T = 0 exchange energy per electron, erg, as a jet in (ln n_e, ln T)."""
     x = jet.loglin(_PF0 * n_e ** (1.0 / 3.0), 1.0 / 3.0, 0.0)
@@ -82,31 +91,40 @@ def exchange_energy_T0(n_e):
     return np.vectorize(lambda n: exchange_T0(n)[0])(n_e)
 
 
-@njit(cache=True)
+@njit(cache=True, error_model="numpy")
+def electron_xc_core(x, x2, eps, kT, f_cl):
+    """f_xc from the jets x = p_F / (m_e c), x^2, eps = sqrt(1 + x^2), kT and f_cl = f_OCP(Gamma_e) (the
+    classical electron one-component plasma, Gamma_e the coupling with Z = 1), each a function of
+    (ln n_e, ln T) already formed (the dense-plasma mixture shares them)."""
+    eF = jet.scale(jet.div(x2, jet.addc(eps, 1.0)), _MC2)   # kinetic Fermi energy
+    theta = jet.div(kT, eF)
+    # T = 0 exchange per electron (exchange_T0): E_x/V / n_e, n_e = (m_e c/hbar)^3 x^3 / (3 pi^2)
+    ex0 = jet.scale(jet.div(_phi_shared(x, x2, eps), jet.mul(x2, x)),
+                    -(3.0 / (4.0 * math.pi)) * const.e_esu**2 * _KC)
+    ex = jet.div(ex0, kT)
+    fx = jet.mul(ex, jet.tanh(jet.scale(jet.inv(theta), 4.0 / 9.0)))
+    # correlation; 1 / r_s = x / (_PF0 (3 / (4 pi))^(1/3) / _BOHR) ∝ n_e^(1/3)
+    irs = jet.loglin(x[0] * _IRS_X, 1.0 / 3.0, 0.0)
+    ec0 = jet.scale(jet.log1p(jet.scale(jet.add(irs, jet.sq(irs)), _CB)), _CA * _HARTREE)
+    th2 = jet.sq(theta)
+    w = jet.div(th2, jet.addc(th2, 1.0))
+    fc = jet.add(jet.mul(w, f_cl), jet.mul(jet.addc(jet.scale(w, -1.0), 1.0), jet.div(ec0, kT)))
+    return jet.add(fx, fc)
+
+
+@njit(cache=True, error_model="numpy")
 def electron_xc(n_e, T, Z, A):
     """Exchange-correlation free energy per electron over kT; jet (f, f_n, f_T, f_nn, f_nT, f_TT).
 
     ``Z`` and ``A`` are unused (kept for the common interface).
     """
     x = jet.loglin(_PF0 * n_e ** (1.0 / 3.0), 1.0 / 3.0, 0.0)
-    x2 = jet.mul(x, x)
-    eF = jet.scale(jet.div(x2, jet.addc(jet.sqrt(jet.addc(x2, 1.0)), 1.0)), _MC2)   # kinetic Fermi energy
-    kT = jet.loglin(const.k_B * T, 0.0, 1.0)
-    theta = jet.div(kT, eF)
-    ex = jet.div(exchange_T0(n_e), kT)
-    fx = jet.mul(ex, jet.tanh(jet.scale(jet.inv(theta), 4.0 / 9.0)))
-    # correlation
-    rs = jet.loglin((3.0 / (4.0 * math.pi * n_e)) ** (1.0 / 3.0) / _BOHR, -1.0 / 3.0, 0.0)
-    irs = jet.inv(rs)
-    ec0 = jet.scale(jet.log1p(jet.scale(jet.add(irs, jet.mul(irs, irs)), _CB)), _CA * _HARTREE)
-    th2 = jet.mul(theta, theta)
-    w = jet.div(th2, jet.addc(th2, 1.0))
-    f_cl = ocp_liquid(coupling(n_e, T, 1.0))
-    fc = jet.add(jet.mul(w, f_cl), jet.mul(jet.addc(jet.scale(w, -1.0), 1.0), jet.div(ec0, kT)))
-    return jet.add(fx, fc)
+    x2 = jet.sq(x)
+    return electron_xc_core(x, x2, jet.sqrt(jet.addc(x2, 1.0)), jet.loglin(const.k_B * T, 0.0, 1.0),
+                            ocp_liquid(coupling(n_e, T, 1.0)))
 
 
-@njit(cache=True)
+@njit(cache=True, error_model="numpy")
 def _many(n_e, T, out):
     for i in range(n_e.size):
         out[:, i] = electron_xc(n_e[i], T[i], 1.0, 1.0)

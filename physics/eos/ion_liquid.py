@@ -64,7 +64,7 @@ from .ion_solid import HARMONIC_CLASSICAL, MADELUNG_BCC, harmonic
 from ..coulomb import A1, A2, A3, B1, B2, B3, B4   # the liquid fit's coefficients, kept in one place
 from .plasma_parameters import coupling, ideal_ion, quantum
 
-__all__ = ["ocp_liquid", "liquid_ion", "liquid_ion_free_energy"]
+__all__ = ["ocp_liquid", "ocp_scalar", "liquid_ion", "liquid_core", "liquid_ion_free_energy"]
 
 #: T_0 = T_p / ETA_FADE: the liquid's classical excess over the lattice freezes below T_0 (our choice)
 ETA_FADE = 3.0
@@ -79,33 +79,110 @@ _LN_ETA3_NL3 = math.log(4.0 * math.pi / 3.0) + 1.5 * math.log(3.0 / (2.0 * math.
 ETA_SERIES = 1e-3
 
 
-@njit(cache=True)
-def ocp_liquid(G):
-    """Classical OCP liquid excess free energy per ion over kT, f(Gamma), Gamma as a jet.
+@njit(cache=True, error_model="numpy")
+def ocp_scalar(g):
+    """f_OCP(Gamma) at Gamma = g and its first two derivatives in Gamma: (f, f', f'').
 
     f = A1 [sqrt(Gamma (A2 + Gamma)) - A2 ln(sqrt(Gamma/A2) + sqrt(1 + Gamma/A2))]
         + 2 A3 [sqrt(Gamma) - arctan(sqrt(Gamma))] + B1 [Gamma - B2 ln(1 + Gamma/B2)]
         + (B3/2) ln(1 + Gamma^2/B4)                       (PC2000 eq. 17)
+    f' = A1 sqrt(Gamma / (A2 + Gamma)) + A3 sqrt(Gamma) / (1 + Gamma) + B1 Gamma / (B2 + Gamma)
+         + B3 Gamma / (B4 + Gamma^2)                      (our differentiation)
+    f'' = A1 A2 / (2 sqrt(Gamma) (A2 + Gamma)^(3/2)) + A3 (1 - Gamma) / (2 sqrt(Gamma) (1 + Gamma)^2)
+          + B1 B2 / (B2 + Gamma)^2 + B3 (B4 - Gamma^2) / (B4 + Gamma^2)^2
     """
-    rg = jet.sqrt(G)
-    t1 = jet.sub(jet.sqrt(jet.mul(G, jet.addc(G, A2))), jet.scale(jet.asinh(jet.scale(rg, 1.0 / math.sqrt(A2))), A2))
-    t2 = jet.sub(rg, jet.atan(rg))
-    t3 = jet.sub(G, jet.scale(jet.log1p(jet.scale(G, 1.0 / B2)), B2))
-    t4 = jet.log1p(jet.scale(jet.mul(G, G), 1.0 / B4))
-    return jet.add(jet.add(jet.scale(t1, A1), jet.scale(t2, 2.0 * A3)),
-                   jet.add(jet.scale(t3, B1), jet.scale(t4, 0.5 * B3)))
+    rg = math.sqrt(g)
+    sa = math.sqrt(g + A2)
+    t1 = math.sqrt(g * (g + A2)) - A2 * math.asinh(rg / math.sqrt(A2))
+    t2 = rg - math.atan(rg)
+    t3 = g - B2 * math.log1p(g / B2)
+    t4 = math.log1p(g * g / B4)
+    f = (A1 * t1 + 2.0 * A3 * t2) + (B1 * t3 + 0.5 * B3 * t4)
+    u = 1.0 + g
+    b2 = B2 + g
+    b4 = B4 + g * g
+    f1 = A1 * rg / sa + A3 * rg / u + B1 * g / b2 + B3 * g / b4
+    f2 = (A1 * A2 / (2.0 * rg * sa * sa * sa) + A3 * (1.0 - g) / (2.0 * rg * u * u)
+          + B1 * B2 / (b2 * b2) + B3 * (B4 - g * g) / (b4 * b4))
+    return f, f1, f2
 
 
-@njit(cache=True)
-def _excess_over_lattice(G):
-    """Delta(Gamma) = f_OCP - [C_M Gamma + 1.5 ln Gamma + c], the classical liquid over the classical harmonic
-    lattice (both as excesses over the ideal gas), Gamma a jet."""
+@njit(cache=True, error_model="numpy")
+def ocp_liquid(G):
+    """Classical OCP liquid excess free energy per ion over kT, f(Gamma), Gamma as a jet (:func:`ocp_scalar`)."""
+    f, f1, f2 = ocp_scalar(G[0])
+    return jet.fun(G, f, f1, f2)
+
+
+@njit(cache=True, error_model="numpy")
+def _excess_given_ocp(G, ocp):
+    """Delta(Gamma) from Gamma and f_OCP(Gamma) (both jets)."""
     lattice = jet.addc(jet.add(jet.scale(G, MADELUNG_BCC), jet.scale(jet.log(G), 1.5)),
                        _LN_ETA3_NL3 + 1.0 + HARMONIC_CLASSICAL)
-    return jet.sub(ocp_liquid(G), lattice)
+    return jet.sub(ocp, lattice)
 
 
-@njit(cache=True)
+@njit(cache=True, error_model="numpy")
+def _excess_over_lattice(G):
+    """Delta(Gamma) = f_OCP - [C_M Gamma + 1.5 ln Gamma + c], the classical liquid over the classical harmonic
+    lattice (both as excesses over the ideal gas), Gamma a jet: one chain rule on the scalar derivatives."""
+    f, f1, f2 = ocp_scalar(G[0])
+    g = G[0]
+    return jet.fun(G, f - (MADELUNG_BCC * g + 1.5 * math.log(g) + _LN_ETA3_NL3 + 1.0 + HARMONIC_CLASSICAL),
+                   f1 - (MADELUNG_BCC + 1.5 / g), f2 + 1.5 / (g * g))
+
+
+@njit(cache=True, inline="always", error_model="numpy")
+def _quarter_power_loglin(v, da, db):
+    """(1 + v)^(1/4) as a jet for v a power law n_e^da T^db given its value (two square roots)."""
+    return jet.root4(jet.addc(jet.loglin(v, da, db), 1.0))
+
+
+@njit(cache=True, error_model="numpy")
+def liquid_core(G, eta, f_id, harm, ocp):
+    """f_liq from the jets Gamma, eta (power laws in n_e and T, as :func:`coupling` and :func:`quantum` give
+    them), the ideal-ion term f_id, f_harm(eta) (``harm``, shared with the solid; not read where
+    eta < ETA_SERIES) and f_OCP(Gamma) (``ocp``: the electron correlation of physics.eos.electron_xc reads the
+    same function at Gamma_e, which is hydrogen's Gamma). Every power below is formed by products and square
+    roots."""
+    if eta[0] < ETA_SERIES:
+        # classical ions: the quantum correction is the Wigner–Kirkwood term (next term ~ eta^4, below
+        # 1e-12 kT here) and the freezing of Delta is O(eta^4) too; skipping them saves most of the cost
+        return jet.add(ocp, jet.scale(jet.sq(eta), 1.0 / 24.0))
+    Gv = G[0]
+    ev = eta[0]
+    # the quantum harmonic lattice, excess over the ideal gas
+    qlat = jet.sub(jet.add(jet.scale(G, MADELUNG_BCC), harm), f_id)
+    delta = _excess_given_ocp(G, ocp)
+    # (a) frozen: Delta at T_eff = (T^4 + T_0^4)^(1/4), times T_eff / T; r = (1 + (eta / ETA_FADE)^4)^(1/4)
+    e3 = ev / ETA_FADE
+    e3 *= e3
+    r4 = jet.addc(jet.loglin(e3 * e3, 2.0, -4.0), 1.0)                         # r^4 = 1 + (eta / ETA_FADE)^4
+    r = jet.root4(r4)
+    frozen = jet.mul(r, _excess_over_lattice(jet.div(G, r)))
+    # the frozen liquid's limit as T -> 0, N k T_0 Delta(Gamma_0) relative to the lattice, taken off again
+    # with a tail that starts at T_1 = FROZEN_TAIL T_0: - N k T_0 Delta(Gamma_0) (1 + (T/T_1)^4)^(-3/4).
+    # Gamma / eta ∝ n_e^(-1/6) depends on density alone
+    g_e = Gv / ev
+    g0 = ETA_FADE * g_e
+    c = g0 / FROZEN_CAP
+    c *= c
+    G0 = jet.div(jet.loglin(g0, -1.0 / 6.0, 0.0), _quarter_power_loglin(c * c, -2.0 / 3.0, 0.0))
+    t1 = ETA_FADE / (FROZEN_TAIL * ev)
+    t1 *= t1
+    p = _quarter_power_loglin(t1 * t1, -2.0, 4.0)                                # (1 + (T / T_1)^4)^(1/4)
+    tail = jet.div(jet.loglin(ev / ETA_FADE, 0.5, -1.0), jet.mul(jet.sq(p), p))
+    frozen = jet.sub(frozen, jet.mul(tail, _excess_over_lattice(G0)))
+    # (b) faded: D(eta) Delta, D = 1 / (1 + (eta / ETA_FADE)^4) = r^-4
+    faded = jet.div(delta, r4)
+    # weight of (a), a function of density alone: Gamma_0 = ETA_FADE Gamma / eta, the coupling at T_0
+    g4 = g_e * (ETA_FADE / GAMMA_FROZEN)
+    g4 *= g4
+    w = jet.inv(jet.addc(jet.loglin(g4 * g4, -2.0 / 3.0, 0.0), 1.0))
+    return jet.add(qlat, jet.add(jet.mul(w, frozen), jet.mul(jet.addc(jet.scale(w, -1.0), 1.0), faded)))
+
+
+@njit(cache=True, error_model="numpy")
 def liquid_ion(n_e, T, Z, A):
     """Free energy per ion over kT of the ion liquid, excess over the classical ideal ion gas.
 
@@ -114,32 +191,11 @@ def liquid_ion(n_e, T, Z, A):
     G = coupling(n_e, T, Z)
     eta = quantum(n_e, T, Z, A)
     if eta[0] < ETA_SERIES:
-        # classical ions: the quantum correction is the Wigner–Kirkwood term (next term ~ eta^4, below
-        # 1e-12 kT here) and the freezing of Delta is O(eta^4) too; skipping them saves most of the cost
-        return jet.add(ocp_liquid(G), jet.scale(jet.mul(eta, eta), 1.0 / 24.0))
-    # the quantum harmonic lattice, excess over the ideal gas
-    qlat = jet.sub(jet.add(jet.scale(G, MADELUNG_BCC), harmonic(eta)), ideal_ion(n_e, T, Z, A))
-    delta = _excess_over_lattice(G)
-    # (a) frozen: Delta at T_eff = (T^4 + T_0^4)^(1/4), times T_eff / T; r = (1 + (eta / ETA_FADE)^4)^(1/4)
-    r = jet.pow_(jet.addc(jet.pow_(jet.scale(eta, 1.0 / ETA_FADE), 4.0), 1.0), 0.25)
-    frozen = jet.mul(r, _excess_over_lattice(jet.div(G, r)))
-    # the frozen liquid's limit as T -> 0, N k T_0 Delta(Gamma_0) relative to the lattice, taken off again
-    # with a tail that starts at T_1 = FROZEN_TAIL T_0: - N k T_0 Delta(Gamma_0) (1 + (T/T_1)^4)^(-3/4)
-    G0 = jet.scale(jet.div(G, eta), ETA_FADE)
-    G0 = jet.mul(G0, jet.pow_(jet.addc(jet.pow_(jet.scale(G0, 1.0 / FROZEN_CAP), 4.0), 1.0), -0.25))
-    x4 = jet.pow_(jet.scale(eta, FROZEN_TAIL / ETA_FADE), -4.0)                 # (T / T_1)^4
-    tail = jet.mul(jet.scale(eta, 1.0 / ETA_FADE), jet.pow_(jet.addc(x4, 1.0), -0.75))
-    frozen = jet.sub(frozen, jet.mul(tail, _excess_over_lattice(G0)))
-    # (b) faded: D(eta) Delta, D = 1 / (1 + (eta / ETA_FADE)^4) = r^-4
-    r4 = jet.mul(jet.mul(r, r), jet.mul(r, r))
-    faded = jet.div(delta, r4)
-    # weight of (a), a function of density alone: Gamma_0 = ETA_FADE Gamma / eta, the coupling at T_0
-    g4 = jet.pow_(jet.scale(jet.div(G, eta), ETA_FADE / GAMMA_FROZEN), 4.0)
-    w = jet.inv(jet.addc(g4, 1.0))
-    return jet.add(qlat, jet.add(jet.mul(w, frozen), jet.mul(jet.addc(jet.scale(w, -1.0), 1.0), faded)))
+        return liquid_core(G, eta, jet.const(0.0), jet.const(0.0), ocp_liquid(G))
+    return liquid_core(G, eta, ideal_ion(n_e, T, Z, A), harmonic(eta), ocp_liquid(G))
 
 
-@njit(cache=True)
+@njit(cache=True, error_model="numpy")
 def _liquid_many(n_e, T, Z, A, out):
     for i in range(n_e.size):
         out[:, i] = liquid_ion(n_e[i], T[i], Z, A)

@@ -37,7 +37,7 @@ from numba import njit
 from . import jet
 from .plasma_parameters import coupling, ideal_ion, quantum
 
-__all__ = ["MADELUNG_BCC", "U1_BCC", "harmonic", "solid_ion", "solid_ion_free_energy"]
+__all__ = ["MADELUNG_BCC", "U1_BCC", "harmonic", "harmonic_scalar", "solid_ion", "solid_core", "solid_ion_free_energy"]
 
 #: Madelung constant of the bcc Coulomb lattice (Baiko, Potekhin & Yakovlev 2001; from memory).
 MADELUNG_BCC = -0.895929255682
@@ -55,31 +55,61 @@ _ANH = (10.9, 247.0, 1.765e5)
 HARMONIC_CLASSICAL = math.log(_ALPHA[0] * _ALPHA[1] * _ALPHA[2]) - 1.0 / _B[0]
 
 
-@njit(cache=True)
-def _poly(x, c, n):
-    # Horner on a jet; c are plain coefficients, highest first handled by the loop
-    p = jet.const(c[n - 1])
-    for k in range(n - 2, -1, -1):
-        p = jet.addc(jet.mul(p, x), c[k])
-    return p
+@njit(cache=True, error_model="numpy")
+def harmonic_scalar(e):
+    """f_harm and its first two derivatives in eta at eta = e (a plain number): (h, h', h'').
+
+    Each branch ln(1 - exp(-alpha eta)) = ln(-expm1(y)), y = -alpha eta, has derivatives
+    -alpha e^y / expm1(y) and -alpha^2 e^y / expm1(y)^2; the rational part A / B by Horner with derivatives,
+    (A/B)' = (A' - q B') / B, (A/B)'' = (A'' - 2 q' B' - q B'') / B with q = A / B.
+    """
+    h = 1.5 * U1_BCC * e
+    h1 = 1.5 * U1_BCC
+    h2 = 0.0
+    for k in range(3):
+        a = _ALPHA[k]
+        y = -a * e
+        ey = math.exp(y)
+        m = math.expm1(y) if y > -0.7 else ey - 1.0        # e^y - 1 is exact to rounding below -0.7
+        r = ey / m
+        h += math.log(-m)
+        h1 -= a * r
+        h2 -= a * a * r / m
+    A0 = _A[8]
+    A1 = 0.0
+    A2 = 0.0
+    for k in range(7, -1, -1):
+        A2 = A2 * e + 2.0 * A1
+        A1 = A1 * e + A0
+        A0 = A0 * e + _A[k]
+    B0 = _B[7]
+    B1 = 0.0
+    B2 = 0.0
+    for k in range(6, -1, -1):
+        B2 = B2 * e + 2.0 * B1
+        B1 = B1 * e + B0
+        B0 = B0 * e + _B[k]
+    e2 = e * e
+    e7 = e2 * e2 * e2 * e
+    c6 = _ALPHA6 * _A[6]
+    c8 = _ALPHA8 * _A[8]
+    B0 += (c6 + c8 * e2) * e7 * e2
+    B1 += (9.0 * c6 + 11.0 * c8 * e2) * e7 * e
+    B2 += (72.0 * c6 + 110.0 * c8 * e2) * e7
+    q = A0 / B0
+    q1 = (A1 - q * B1) / B0
+    q2 = (A2 - 2.0 * q1 * B1 - q * B2) / B0
+    return h - q, h1 - q1, h2 - q2
 
 
-@njit(cache=True)
+@njit(cache=True, error_model="numpy")
 def harmonic(eta):
     """f_harm(eta) of the bcc harmonic lattice (BPY 2001 fit), eta given as a jet."""
-    f = jet.scale(eta, 1.5 * U1_BCC)
-    for k in range(3):
-        # ln(1 - exp(-alpha eta)) = ln(-expm1(-alpha eta))
-        f = jet.add(f, jet.log(jet.scale(jet.expm1(jet.scale(eta, -_ALPHA[k])), -1.0)))
-    A = _poly(eta, _A, 9)
-    e2 = jet.mul(eta, eta)
-    e9 = jet.mul(jet.mul(jet.mul(e2, e2), jet.mul(e2, e2)), eta)
-    B = jet.add(_poly(eta, _B, 8), jet.add(jet.scale(e9, _ALPHA6 * _A[6]),
-                                           jet.scale(jet.mul(e9, e2), _ALPHA8 * _A[8])))
-    return jet.sub(f, jet.div(A, B))
+    h, h1, h2 = harmonic_scalar(eta[0])
+    return jet.fun(eta, h, h1, h2)
 
 
-@njit(cache=True)
+@njit(cache=True, error_model="numpy")
 def harmonic_quantum_correction(eta):
     """f_harm(eta) - (3 ln eta + 3 <ln(omega/omega_p)>): the quantum part of the harmonic lattice.
 
@@ -89,7 +119,7 @@ def harmonic_quantum_correction(eta):
     return jet.addc(jet.sub(harmonic(eta), jet.scale(jet.log(eta), 3.0)), -HARMONIC_CLASSICAL)
 
 
-@njit(cache=True)
+@njit(cache=True, error_model="numpy")
 def anharmonic(G, eta):
     """Classical anharmonic correction faded by exp(-eta^2) (see the module docstring)."""
     iG = jet.inv(G)
@@ -99,20 +129,39 @@ def anharmonic(G, eta):
     return jet.mul(f, jet.exp(jet.scale(jet.mul(eta, eta), -1.0)))
 
 
-@njit(cache=True)
+@njit(cache=True, inline="always", error_model="numpy")
+def anharmonic_loglin(Gv, ev):
+    """:func:`anharmonic` for Gamma ∝ n_e^(1/3) / T and eta ∝ n_e^(1/2) / T given by their values (power
+    laws: every jet is a power law times exp(-eta^2), with fewer operations)."""
+    ig = 1.0 / Gv
+    f = -ig * (_ANH[0] + ig * (_ANH[1] / 2.0 + ig * _ANH[2] / 3.0))
+    f_a = ig * (_ANH[0] + ig * (_ANH[1] + ig * _ANH[2])) / 3.0                  # d f / d ln n_e
+    f_aa = -ig * (_ANH[0] + ig * (2.0 * _ANH[1] + ig * 3.0 * _ANH[2])) / 9.0
+    # d/d ln T = -3 d/d ln n_e on a function of Gamma alone
+    fj = (f, f_a, -3.0 * f_a, f_aa, -3.0 * f_aa, 9.0 * f_aa)
+    e2 = ev * ev
+    return jet.mul(fj, jet.exp(jet.loglin(-e2, 1.0, -2.0)))
+
+
+@njit(cache=True, inline="always", error_model="numpy")
+def solid_core(G, eta, f_id, harm):
+    """f_sol from the jets Gamma, eta, the ideal-ion term and f_harm(eta) (shared with the liquid)."""
+    f = jet.add(jet.scale(G, MADELUNG_BCC), harm)
+    f = jet.add(f, anharmonic_loglin(G[0], eta[0]))
+    return jet.sub(f, f_id)
+
+
+@njit(cache=True, error_model="numpy")
 def solid_ion(n_e, T, Z, A):
     """Free energy per ion over kT of the bcc crystal, excess over the classical ideal ion gas.
 
     Returns the jet (f, f_n, f_T, f_nn, f_nT, f_TT), derivatives in ln n_e and ln T.
     """
-    G = coupling(n_e, T, Z)
     eta = quantum(n_e, T, Z, A)
-    f = jet.add(jet.scale(G, MADELUNG_BCC), harmonic(eta))
-    f = jet.add(f, anharmonic(G, eta))
-    return jet.sub(f, ideal_ion(n_e, T, Z, A))
+    return solid_core(coupling(n_e, T, Z), eta, ideal_ion(n_e, T, Z, A), harmonic(eta))
 
 
-@njit(cache=True)
+@njit(cache=True, error_model="numpy")
 def _solid_many(n_e, T, Z, A, out):
     for i in range(n_e.size):
         out[:, i] = solid_ion(n_e[i], T[i], Z, A)

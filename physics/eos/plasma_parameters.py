@@ -14,12 +14,14 @@ from __future__ import annotations
 
 import math
 
+import numpy as np
 from numba import njit
 
 from .. import constants as const
 from . import jet
 
-__all__ = ["coupling", "quantum", "ideal_ion", "plasma_temperature"]
+__all__ = ["coupling", "quantum", "ideal_ion", "plasma_temperature", "point_scales", "species_constants",
+           "species_jets"]
 
 _LN_GAMMA0 = math.log(const.e_esu**2 / const.k_B) + math.log(4.0 * math.pi / 3.0) / 3.0
 _LN_ETA0 = math.log(const.hbar / const.k_B) + 0.5 * math.log(4.0 * math.pi * const.e_esu**2 / const.m_u)
@@ -27,27 +29,27 @@ _LN_ETA0 = math.log(const.hbar / const.k_B) + 0.5 * math.log(4.0 * math.pi * con
 _LN_LAM3_0 = 1.5 * math.log(const.h**2 / (2.0 * math.pi * const.m_u * const.k_B))
 
 
-@njit(cache=True)
+@njit(cache=True, error_model="numpy")
 def coupling(n_e, T, Z):
     """Gamma_i = Gamma_e Z^(5/3) as a jet (Gamma ∝ n_e^(1/3) / T)."""
     v = math.exp(_LN_GAMMA0 + math.log(n_e) / 3.0 - math.log(T) + (5.0 / 3.0) * math.log(Z))
     return jet.loglin(v, 1.0 / 3.0, -1.0)
 
 
-@njit(cache=True)
+@njit(cache=True, error_model="numpy")
 def quantum(n_e, T, Z, A):
     """eta = T_p / T as a jet (T_p ∝ (n_e Z / A)^(1/2))."""
     v = math.exp(_LN_ETA0 + 0.5 * (math.log(n_e) + math.log(Z) - math.log(A)) - math.log(T))
     return jet.loglin(v, 0.5, -1.0)
 
 
-@njit(cache=True)
+@njit(cache=True, error_model="numpy")
 def plasma_temperature(n_e, Z, A):
     """Ion plasma temperature T_p = hbar omega_p / k, K."""
     return math.exp(_LN_ETA0 + 0.5 * (math.log(n_e) + math.log(Z) - math.log(A)))
 
 
-@njit(cache=True)
+@njit(cache=True, error_model="numpy")
 def ideal_ion(n_e, T, Z, A):
     """Classical ideal-gas (Sackur–Tetrode) free energy per ion over kT: ln(n_i lambda^3) - 1, as a jet.
 
@@ -55,3 +57,38 @@ def ideal_ion(n_e, T, Z, A):
     """
     v = math.log(n_e) - math.log(Z) + _LN_LAM3_0 - 1.5 * math.log(A) - 1.5 * math.log(T) - 1.0
     return jet.lin(v, 1.0, -1.5)
+
+
+# The same three jets for many species at one point, sharing the logarithms and exponentials (the dense-plasma
+# mixture): Gamma_i = Gamma_1 Z^(5/3), eta_i = eta_1 (Z / A)^(1/2), f_id,i = ln n_e - 1.5 ln T + c_i.
+
+
+@njit(cache=True, error_model="numpy")
+def point_scales(n_e, T):
+    """(ln n_e, ln T, Gamma_1, eta_1) at one point: Gamma and eta = T_p / T of a species with Z = A = 1."""
+    ln_n = math.log(n_e)
+    ln_T = math.log(T)
+    return (ln_n, ln_T, math.exp(_LN_GAMMA0 + ln_n / 3.0 - ln_T), math.exp(_LN_ETA0 + 0.5 * ln_n - ln_T))
+
+
+@njit(cache=True, error_model="numpy")
+def species_constants(Z, A):
+    """Per-species factors, shape (4, n): Z^(5/3), (Z / A)^(1/2), the constant of ln(n_i lambda^3) - 1 and
+    Z^(2/3) (the screening's a_i^2 over a_e^2)."""
+    out = np.empty((4, Z.size))
+    for i in range(Z.size):
+        lz = math.log(Z[i])
+        out[0, i] = math.exp((5.0 / 3.0) * lz)
+        out[1, i] = math.exp(0.5 * (lz - math.log(A[i])))
+        out[2, i] = -lz + _LN_LAM3_0 - 1.5 * math.log(A[i]) - 1.0
+        out[3, i] = math.exp((2.0 / 3.0) * lz)
+    return out
+
+
+@njit(cache=True, inline="always", error_model="numpy")
+def species_jets(scales, sc, i):
+    """(Gamma, eta, f_id) of species i as jets, from :func:`point_scales` and :func:`species_constants`;
+    equal to :func:`coupling`, :func:`quantum` and :func:`ideal_ion` to rounding."""
+    ln_n, ln_T, g1, e1 = scales
+    return (jet.loglin(g1 * sc[0, i], 1.0 / 3.0, -1.0), jet.loglin(e1 * sc[1, i], 0.5, -1.0),
+            jet.lin(ln_n - 1.5 * ln_T + sc[2, i], 1.0, -1.5))

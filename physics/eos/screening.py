@@ -43,7 +43,7 @@ from .. import constants as const
 from . import jet
 from .plasma_parameters import coupling
 
-__all__ = ["screening_ion", "screening_free_energy", "GAMMA_X"]
+__all__ = ["screening_ion", "screening_core", "electron_q2", "degenerate_energy", "screening_free_energy", "GAMMA_X"]
 
 #: Gamma at which the Debye–Hückel-like small-q slope and the ion-sphere slope (18/175) Gamma meet.
 GAMMA_X = (175.0 * math.sqrt(3.0) / (6.0 * 18.0)) ** 2
@@ -53,7 +53,7 @@ _PF0 = const.hbar * (3.0 * math.pi**2) ** (1.0 / 3.0) / (const.m_e * const.c)   
 _LN_AI0 = math.log(3.0 / (4.0 * math.pi)) / 3.0
 
 
-@njit(cache=True)
+@njit(cache=True, error_model="numpy")
 def degenerate_energy(n_e):
     """E_d = p_F^2 c^2 / (3 mu_F) at T = 0, erg, as a jet (n_e dependence only)."""
     x = jet.loglin(_PF0 * n_e ** (1.0 / 3.0), 1.0 / 3.0, 0.0)
@@ -61,7 +61,7 @@ def degenerate_energy(n_e):
     return jet.scale(jet.div(x2, jet.sqrt(jet.addc(x2, 1.0))), _MC2 / 3.0)
 
 
-@njit(cache=True)
+@njit(cache=True, error_model="numpy")
 def screening_q2(n_e, T, Z):
     """q^2 = k_e^2 a_i^2 as a jet."""
     kT = jet.loglin(const.k_B * T, 0.0, 1.0)
@@ -72,26 +72,47 @@ def screening_q2(n_e, T, Z):
     return jet.div(num, kT_eff)
 
 
-@njit(cache=True)
+@njit(cache=True, inline="always", error_model="numpy")
+def electron_q2(ln_n, T, Ed):
+    """q^2 / Z^(2/3) (the species factor of a_i^2 taken out) as a jet, from ln n_e, T and
+    :func:`degenerate_energy` (shared by every species at one point)."""
+    kT = jet.loglin(const.k_B * T, 0.0, 1.0)
+    kT_eff = jet.sqrt(jet.add(jet.sq(kT), jet.sq(Ed)))
+    num = jet.loglin(4.0 * math.pi * const.e_esu**2 * math.exp(2.0 * _LN_AI0 + ln_n / 3.0), 1.0 / 3.0, 0.0)
+    return jet.div(num, kT_eff)
+
+
+@njit(cache=True, error_model="numpy")
+def screening_core(G, q2):
+    """f_sc from the jets Gamma and q^2.
+
+    (3 Gamma + s^2)^(3/2) - (3 Gamma)^(3/2) is formed as s^2 (a^2 + a b + b^2) / (a + b),
+    a = (3 Gamma + s^2)^(1/2), b = (3 Gamma)^(1/2): no cancellation where s^2 << 3 Gamma.
+    """
+    s2 = jet.div(q2, jet.addc(q2, 1.0))
+    G3 = jet.scale(G, 3.0)
+    a2 = jet.add(G3, s2)
+    a = jet.sqrt(a2)
+    b = jet.loglin(math.sqrt(G3[0]), 1.0 / 6.0, -0.5)                 # Gamma ∝ n_e^(1/3) / T
+    d = jet.div(jet.mul(s2, jet.add(jet.add(a2, G3), jet.mul(a, b))), jet.add(a, b))
+    fw = jet.scale(jet.sub(d, jet.pow15(s2)), -1.0 / 9.0)
+    fs = jet.scale(jet.mul(G, s2), -18.0 / 175.0)
+    g = G[0] / GAMMA_X
+    g *= g
+    y = jet.loglin(g * g, 4.0 / 3.0, -4.0)                             # (Gamma / Gamma_x)^4
+    return jet.div(jet.add(fw, jet.mul(y, fs)), jet.addc(y, 1.0))
+
+
+@njit(cache=True, error_model="numpy")
 def screening_ion(n_e, T, Z, A):
     """Screening free energy per ion over kT; jet (f, f_n, f_T, f_nn, f_nT, f_TT) in ln n_e, ln T.
 
     ``A`` is unused (kept for the common interface).
     """
-    G = coupling(n_e, T, Z)
-    q2 = screening_q2(n_e, T, Z)
-    s2 = jet.div(q2, jet.addc(q2, 1.0))
-    G3 = jet.scale(G, 3.0)
-    fw = jet.scale(jet.sub(jet.sub(jet.pow_(jet.add(G3, s2), 1.5), jet.pow_(G3, 1.5)), jet.pow_(s2, 1.5)),
-                   -1.0 / 9.0)
-    fs = jet.scale(jet.mul(G, s2), -18.0 / 175.0)
-    g = jet.scale(G, 1.0 / GAMMA_X)
-    g2 = jet.mul(g, g)
-    y = jet.mul(g2, g2)
-    return jet.div(jet.add(fw, jet.mul(y, fs)), jet.addc(y, 1.0))
+    return screening_core(coupling(n_e, T, Z), screening_q2(n_e, T, Z))
 
 
-@njit(cache=True)
+@njit(cache=True, error_model="numpy")
 def _many(n_e, T, Z, A, out):
     for i in range(n_e.size):
         out[:, i] = screening_ion(n_e[i], T[i], Z, A)

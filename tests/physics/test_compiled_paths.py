@@ -55,3 +55,31 @@ def test_compiled_saha_root_matches_the_numpy_root(X, Y):
     st = M._stages(saha, eta, T[ok], n_full[ok])
     n_free = M._free_electrons(st, saha, fixed, RHO[ok])[0]
     np.testing.assert_allclose(np.log(n_c[ok]), np.log(n_free), atol=1e-11, rtol=0)
+
+
+@pytest.mark.parametrize("X, Y", [(0.70, 0.28), (1.0, 0.0), (0.0, 0.98)])
+def test_fused_saha_state_matches_the_numpy_passes(X, Y):
+    """solve_saha_state (one compiled pass: gas at n_full, completeness, root, gas at the root) against the
+    numpy passes of matter._saha_density and the numpy pair-free table at the same n_e."""
+    from thermoplane.physics.electron_fast import state_from_points
+    from thermoplane.physics.saha_kernel import solve_saha_state
+
+    comp = ph.Composition.from_xyz(X, Y, 1.0 - X - Y)
+    saha, fixed = M._saha_elements(comp, "saha")
+    n_full = RHO * float(np.sum(comp.X * comp.Z / (comp.A * const.m_u)))
+    n_e, buf, ok = solve_saha_state(n_full, RHO, T, saha, fixed, M.ELEMENTS, True)
+    n_p = M._saha_density(n_full, RHO, T, saha, fixed, "fermi", True)[0]
+    assert ok.mean() > 0.5
+    # complete ionization gives n_full exactly on both paths (bar points at the 1e-13 completeness threshold)
+    same = n_p == n_full
+    assert np.mean(n_e[ok & same] == n_full[ok & same]) > 0.99
+    np.testing.assert_allclose(np.log(n_e[ok]), np.log(n_p[ok]), atol=1e-12, rtol=0)
+    # handed back: outside the table, below its lowest density, or positrons not negligible at n_e
+    back = ~ok & (n_p >= 1e4) & (T < 10.0**11.5) & (T >= 1e3) & (n_p < 1e37)
+    eta_back = M._eta_at(n_p[back], T[back], "fermi", False)[0]
+    assert np.all(M._positron_bound(eta_back, T[back]) > 0.5 * M.NEGLIGIBLE_POSITRONS * n_p[back])
+    # the gas returned at n_e is the numpy table's there
+    new, old = state_from_points(n_e[ok], T[ok], buf[ok]), table_state(n_e[ok], T[ok], pairs=False)
+    for name in ("eta", "dP_dn", "dP_dT_n", "dE_dn", "dE_dT_n", "deta_dn", "deta_dT"):
+        np.testing.assert_allclose(getattr(new, name), getattr(old, name), rtol=1e-9, atol=0, err_msg=name)
+    np.testing.assert_allclose(new.gas.P, old.gas.P, rtol=1e-9, atol=0)
