@@ -139,8 +139,13 @@ def _colour_range(z, q, mid, transform_unit):
         texts = [_fmt_tick(v) for v in vals]
     vals, texts = list(vals), list(texts)
     # the ends of the colour bar say where the colours stop: "≤ lo", "≥ hi" when the data go beyond
+    span = hi - lo
     for end, where, mark in ((lo, 0, "≤ "), (hi, None, "≥ ")):
-        label = _fmt_tick(end if transform_unit is None else transform_unit * np.sinh(end))
+        value = end if transform_unit is None else transform_unit * np.sinh(end)
+        # an end within a millionth of the bar's span of zero is zero (a log fraction of -9.5e-12 reads 0)
+        if transform_unit is None and abs(value) < 1e-6 * span:
+            value = 0.0
+        label = _fmt_tick(value)
         is_clipped = clipped[0] if mark == "≤ " else clipped[1]
         if where == 0:
             vals.insert(0, lo)

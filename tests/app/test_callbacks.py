@@ -161,6 +161,15 @@ def test_gamma1_range_is_robust_to_a_spike_and_says_it_is_clipped():
     assert "clipped" in h.colorbar.title.text and any(t.startswith(("≥", "≤")) for t in h.colorbar.ticktext)
 
 
+def test_a_colour_bar_end_at_rounding_distance_from_zero_reads_zero():
+    # a log10 fraction whose top 1 % is -1e-11 (the H2 fraction of fully molecular gas): the end says
+    # "≥ 0", not "≥ -9.513e-12"; an end away from zero keeps its value
+    z = np.concatenate([np.linspace(-6.0, -1e-11, 990), np.zeros(10)])
+    _, lo, hi, vals, texts, clipped = map_cb._colour_range(z, None, None, None)
+    assert clipped[1] and texts[-1] == "≥ 0"
+    assert texts[0] == "≤ " + map_cb._fmt_tick(lo) and lo < -5.0
+
+
 def test_burning_map_states_its_floor():
     h = heatmap(map_cb.update_map(**controls(quantity="eps_pp"))["figure"])
     assert "blank below 10^-30 erg/g/s" in h.colorbar.title.text
