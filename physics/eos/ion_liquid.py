@@ -62,6 +62,7 @@ from numba import njit
 from . import jet
 from .ion_solid import HARMONIC_CLASSICAL, MADELUNG_BCC, harmonic
 from ..coulomb import A1, A2, A3, B1, B2, B3, B4   # the liquid fit's coefficients, kept in one place
+from .coulomb_term import _LG0, _LG1, _TAB_F, _TAB_U, _TAB_V, _ocp_lookup
 from .plasma_parameters import coupling, ideal_ion, quantum
 
 __all__ = ["ocp_liquid", "ocp_scalar", "liquid_ion", "liquid_core", "liquid_ion_free_energy"]
@@ -91,6 +92,13 @@ def ocp_scalar(g):
     f'' = A1 A2 / (2 sqrt(Gamma) (A2 + Gamma)^(3/2)) + A3 (1 - Gamma) / (2 sqrt(Gamma) (1 + Gamma)^2)
           + B1 B2 / (B2 + Gamma)^2 + B3 (B4 - Gamma^2) / (B4 + Gamma^2)^2
     """
+    lnG = math.log(g)
+    if _LG0 <= lnG < _LG1:
+        # the same fit read from its quintic Hermite table in ln Gamma (physics.eos.coulomb_term: within
+        # 1e-12 of the formulas, C2, its derivatives those of the interpolant): one log and a polynomial
+        # instead of three square roots, asinh, atan and two log1p
+        f, u, v = _ocp_lookup(lnG, _TAB_F, _TAB_U, _TAB_V)
+        return f, u / g, (v - u) / (g * g)
     rg = math.sqrt(g)
     sa = math.sqrt(g + A2)
     t1 = math.sqrt(g * (g + A2)) - A2 * math.asinh(rg / math.sqrt(A2))
