@@ -55,6 +55,19 @@ _ANH = (10.9, 247.0, 1.765e5)
 HARMONIC_CLASSICAL = math.log(_ALPHA[0] * _ALPHA[1] * _ALPHA[2]) - 1.0 / _B[0]
 
 
+@njit(cache=True, inline="always", error_model="numpy")
+def _horner2(c, degree, x):
+    """sum_k c[k] x^k (k <= degree) and its first two derivatives in x, by Horner's rule."""
+    p0 = c[degree]
+    p1 = 0.0
+    p2 = 0.0
+    for k in range(degree - 1, -1, -1):
+        p2 = p2 * x + 2.0 * p1
+        p1 = p1 * x + p0
+        p0 = p0 * x + c[k]
+    return p0, p1, p2
+
+
 @njit(cache=True, error_model="numpy")
 def harmonic_scalar(e):
     """f_harm and its first two derivatives in eta at eta = e (a plain number): (h, h', h'').
@@ -75,20 +88,8 @@ def harmonic_scalar(e):
         h += math.log(-m)
         h1 -= a * r
         h2 -= a * a * r / m
-    A0 = _A[8]
-    A1 = 0.0
-    A2 = 0.0
-    for k in range(7, -1, -1):
-        A2 = A2 * e + 2.0 * A1
-        A1 = A1 * e + A0
-        A0 = A0 * e + _A[k]
-    B0 = _B[7]
-    B1 = 0.0
-    B2 = 0.0
-    for k in range(6, -1, -1):
-        B2 = B2 * e + 2.0 * B1
-        B1 = B1 * e + B0
-        B0 = B0 * e + _B[k]
+    A0, A1, A2 = _horner2(_A, 8, e)
+    B0, B1, B2 = _horner2(_B, 7, e)
     e2 = e * e
     e7 = e2 * e2 * e2 * e
     c6 = _ALPHA6 * _A[6]

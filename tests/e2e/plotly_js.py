@@ -33,3 +33,9 @@ def annotation_texts(graph_id: str) -> str:
     return f"""() => {{ const gd = document.querySelector('#{graph_id} .js-plotly-plot');
   if (!gd || !gd.layout || !gd.layout.annotations) return [];
   return gd.layout.annotations.map(a => a.text || ''); }}"""
+
+
+def wait_for_line(page, graph_id: str, meta: str, more_than: int, timeout: float) -> None:
+    """Wait until the line (trace ``meta``) of the live figure has more than ``more_than`` finite x values."""
+    xs = trace_values(graph_id, meta, "x")
+    page.wait_for_function(f"() => {{ const x = ({xs})(); return x && x.length > {more_than}; }}", timeout=timeout)

@@ -5,22 +5,20 @@ from __future__ import annotations
 import pytest
 
 from tests.conftest import screenshot
-from tests.e2e.plotly_js import annotation_texts, trace_values
+from tests.e2e.plotly_js import annotation_texts, wait_for_line
 
 pytestmark = pytest.mark.e2e
 
 # full physics (Coulomb terms on), carbon-oxygen, a coarse grid to keep the test quick
 VIEW = "?mix=C-12%3D0.5%2CO-16%3D0.5&mix_on=1&resolution=120"
 TIMEOUT = 180000
-MELT_X = trace_values("plane-graph", "crystallization", "x")
-QUANTUM_X = trace_values("plane-graph", "quantum_ions", "x")
 LABELS = annotation_texts("plane-graph")
 
 
 def test_melting_and_quantum_ion_lines_and_cv_split(server_url, page):
     page.goto(server_url + VIEW)
-    page.wait_for_function(f"() => {{ const x = ({MELT_X})(); return x && x.length > 10; }}", timeout=TIMEOUT)
-    page.wait_for_function(f"() => {{ const x = ({QUANTUM_X})(); return x && x.length > 10; }}", timeout=TIMEOUT)
+    wait_for_line(page, "plane-graph", "crystallization", 10, TIMEOUT)
+    wait_for_line(page, "plane-graph", "quantum_ions", 10, TIMEOUT)
     labels = " | ".join(page.evaluate(LABELS))
     assert "melting" in labels and "quantum ions" in labels
     screenshot(page, "dense_plasma_lines")
