@@ -12,8 +12,6 @@ Conventions: stage j is the ion of charge j (j = 0 the neutral atom, j = Z the b
 
 from __future__ import annotations
 
-from fractions import Fraction
-
 import numpy as np
 
 from .. import constants as const
