@@ -275,7 +275,9 @@ def about_physics() -> list:
           "the ion c_V readout includes electron screening, slightly negative in degenerate matter; "
           "electron screening is our Thomas–Fermi ion-sphere interpolation, exchange-correlation our "
           "interpolation between exact limits (see the README); in the Saha option the pressure-ionization "
-          "rule makes S < 0 in a small band near 1–4 g cm⁻³ below 10⁴·² K. "
+          "rule is a free energy at fixed density whose pressure is left out (so P rises through the band), "
+          "and at the band's dense end heating recombines H (∇_ad dips just below 0 near 2.4 g cm⁻³, "
+          "1–2.5×10⁴ K). "
           "The lines on the map are read off the map's own pixels (refine the resolution for finer lines)."),
         P("Being built: one free energy for partly ionized, pressure-ionized and molecular matter (H₂, every "
           "ionization stage of every element, the Coulomb term of each ion, an excluded volume whose derivative "

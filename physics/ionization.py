@@ -23,29 +23,39 @@ Pressure ionization: Saha alone recombines matter at high density, because
 the bound states it counts cannot exist once the particles crowd closer than
 their size. Occupation probabilities w_j (Hummer & Mihalas 1988, ApJ 331,
 794) take the destroyed states out of the partition functions. Their
-published hard-sphere form depends on density only, and no density-only w can
-beat the factor exp(-eta) of degenerate electrons as T -> 0 (complete
-ionization at rho >= 10 g cm^-3 would then need w = 0 exactly, which makes
-the ionization jump). We therefore use a rule of our own in that spirit:
+published hard-sphere form comes with a pressure term that makes the
+pressure fall through pressure ionization (a van der Waals loop, see the
+chemical picture in :mod:`thermoplane.physics.eos.equilibrium`); the default
+uses a rule of our own in that spirit, written as a free energy at fixed
+density. Stage j carries
 
-    ln w_j = -D_j b(s) / (1 - b(s)),   D_j = (C_Z - C_j)/kT + (Z - j) (softplus(eta) + 12),
+    F_w,j = G(s) D_j,   D_j = (C_Z - C_j) + (Z - j) E_F,   ln w_j = -F_w,j / kT,
 
-with s = (4 pi / 3) n_e,full a_0^3 + (T / 1.35e8 K)^4: the packing fraction of
-Bohr spheres at the electron density of fully ionized matter, plus a thermal
+with E_F the kinetic Fermi energy of the electrons of fully ionized matter
+(a function of density only), s = (4 pi / 3) n_e,full a_0^3 + (T / 1.35e8 K)^4
+the packing fraction of Bohr spheres at that electron density plus a thermal
 term (our own) that completes the ionization above ~2e8 K, where the
 ground-state-only Saha equation would otherwise recombine hydrogen in the
-dense electron–positron plasma (kT >> chi there). b(s) is a smooth step
-(infinitely differentiable) rising from 0 at s <= 0.3 to 1 at s >= 1.8
-(rho ~ 0.8–10 g cm^-3 depending on the composition). D_j is the depth at
-which the fully ionized stage outweighs stage j by e^12 per missing electron
-at any T and eta; it is reached half-way through the band (b = 1/2), and
-beyond the band (b = 1) the bound states are gone: H and He are completely
-ionized at rho >= 10 g cm^-3, and the transition is smooth at every temperature.
-Because w depends on T and eta, the rule is not derived from a free energy:
-inside the band 0.3 < s < 1.8, where matter is not already ionized
-thermally, the thermodynamic identities hold only approximately (outside
-it, exactly). No pressure term is attached to w, so
-the pressure rises monotonically through pressure ionization.
+dense electron–positron plasma (kT >> chi there), and G = b / (1 - b) with
+b(s) a smooth step (infinitely differentiable) rising from 0 at s <= 0.3 to 1
+at s >= 1.8 (rho ~ 0.8–10 g cm^-3 depending on the composition). D_j is the
+energy that lifts stage j to the fully ionized stage with its electrons at
+the Fermi level of fully ionized matter: where G = 1 the fully ionized stage
+wins at any T (the degenerate electrons' factor exp(-eta) cannot beat it,
+since their chemical potential is below E_F), and beyond the band (b = 1) the
+bound states are gone: H and He are completely ionized at rho >= 10 g cm^-3,
+smoothly at every temperature.
+
+Because w_j depends on (rho, T) only, the Saha equation with w_j is the exact
+minimum of F_ideal + sum_j N_j F_w,j at fixed (rho, T): the entropy
+S = -dF/dT and the energy follow from it, each stage adding
+E_w,j = F_w,j - T dF_w,j/dT and S_w,j = E_w,j / T - F_w,j / T, so
+T (dS/dT)_rho = (dE/dT)_rho holds through the band. The pressure of F_w,j
+(rho^2 dF_w/drho, which would make the pressure fall through pressure
+ionization) is left out, so the pressure rises monotonically: inside the band
+0.3 < s < 1.8, where matter is not already ionized thermally, the identity
+rho^2 (dE/drho)_T = P - T (dP/dT)_rho holds only approximately (outside it,
+exactly).
 
 Metals are treated as fully ionized at every (rho, T). Only ground states
 are counted (no excited levels, no molecules, no H-).
@@ -94,7 +104,10 @@ class StageState:
     ``f[j]`` has the broadcast shape; ``f_eta[j]``, ``f_T[j]``, ``f_lnrho[j]``
     are partials at fixed other two of (eta, T, ln rho). ``ln_f_gw[j]`` is
     ln(f_j / (g_j w_j)) = -j eta - C_j/kT - ln sum q, finite even where a state
-    is destroyed (it enters the entropy). ``ln_w[j]`` and its partials ``ln_w_eta``, ``ln_w_T``, ``ln_w_lnrho``.
+    is destroyed (it enters the entropy). ``ln_w[j]`` and its partials ``ln_w_eta`` (zero: w depends on
+    (rho, T) only), ``ln_w_T``, ``ln_w_lnrho``. ``e_w[j]`` is the energy of the rule's free energy,
+    E_w,j = F_w,j - T dF_w,j/dT (erg per particle; 0 where the state is destroyed), with its partials
+    ``e_w_T`` (d/dT) and ``e_w_lnrho`` (d/d ln rho).
     """
 
     f: list
@@ -106,6 +119,9 @@ class StageState:
     ln_w_eta: list
     ln_w_T: list
     ln_w_lnrho: list
+    e_w: list
+    e_w_T: list
+    e_w_lnrho: list
     cumulative: np.ndarray
 
     @property
@@ -121,8 +137,6 @@ class StageState:
 #: The pressure-ionization step b(s) rises from 0 at S_ONSET to 1 at S_COMPLETE.
 S_ONSET = 0.3
 S_COMPLETE = 1.8
-#: Margin (per missing electron, in ln) by which full ionization wins once b = 1.
-MARGIN = 12.0
 #: Temperature scale of the thermal term of the destruction parameter (s grows as (T / this)^4).
 THERMAL_DESTRUCTION_T = 1.35e8
 #: ln w of a destroyed state: exp() gives exactly 0, quietly, whatever eta is.
@@ -130,21 +144,32 @@ _DESTROYED = -1.0e300
 
 
 def _smooth_step(s: np.ndarray):
-    """b(s) from 0 to 1 in ln s between S_ONSET and S_COMPLETE, C-infinity; and db / d ln s."""
+    """b(s) from 0 to 1 in ln s between S_ONSET and S_COMPLETE, C-infinity; db / d ln s and d2b / d(ln s)^2.
+
+    b = 1 / (1 + e^-h) with h = 1/(1 - t) - 1/t, t = ln(s / S_ONSET) / ln(S_COMPLETE / S_ONSET) in (0, 1).
+    """
     width = np.log(S_COMPLETE / S_ONSET)
     t = np.clip(np.log(np.maximum(s, 1e-300) / S_ONSET) / width, 0.0, 1.0)
     inside = (t > 0.0) & (t < 1.0)
     ti = np.where(inside, t, 0.5)
-    a = np.exp(-1.0 / ti)
-    c = np.exp(-1.0 / (1.0 - ti))
-    b = np.where(inside, a / (a + c), np.where(t >= 1.0, 1.0, 0.0))
-    db_dt = (a / ti**2 * c + a * c / (1.0 - ti) ** 2) / (a + c) ** 2
-    return b, np.where(inside, db_dt / width, 0.0)
+    h = 1.0 / (1.0 - ti) - 1.0 / ti
+    e = np.exp(-np.abs(h))
+    b_in = np.where(h >= 0.0, 1.0 / (1.0 + e), e / (1.0 + e))
+    h_t = 1.0 / ti**2 + 1.0 / (1.0 - ti) ** 2
+    h_tt = 2.0 / (1.0 - ti) ** 3 - 2.0 / ti**3
+    bb = b_in * (1.0 - b_in)
+    b = np.where(inside, b_in, np.where(t >= 1.0, 1.0, 0.0))
+    db = np.where(inside, bb * h_t / width, 0.0)
+    d2b = np.where(inside, bb * ((1.0 - 2.0 * b_in) * h_t**2 + h_tt) / width**2, 0.0)
+    return b, db, d2b
 
 
-def _softplus(x):
-    """ln(1 + e^x) and its derivative, without overflow."""
-    return np.maximum(x, 0.0) + np.log1p(np.exp(-np.abs(x))), 0.5 * (1.0 + np.tanh(0.5 * x))
+def fermi_energy(n_e: np.ndarray):
+    """Kinetic Fermi energy of an electron gas of density n_e (cm^-3) at T = 0, with relativity, and its
+    derivative in ln n_e: E_F = m c^2 (sqrt(1 + x^2) - 1), x = hbar (3 pi^2 n_e)^(1/3) / (m c)."""
+    x = const.hbar * np.cbrt(3.0 * np.pi**2 * n_e) / (const.m_e * const.c)
+    root = np.sqrt(1.0 + x * x)
+    return const.m_e_c2 * x * x / (root + 1.0), const.m_e_c2 * x * x / (3.0 * root)
 
 
 def ionization_stages(element: Element, eta: np.ndarray, T: np.ndarray, n_e_full: np.ndarray,
@@ -179,42 +204,51 @@ def ionization_stages(element: Element, eta: np.ndarray, T: np.ndarray, n_e_full
     Z = element.Z
     n_stages = Z + 1
     shape = np.broadcast(eta, T, n_e_full).shape
+    zero = np.zeros(shape)
     if pressure_ionization:
         # packing of Bohr spheres, plus a thermal term that completes ionization above ~2e8 K, where
         # the ground-state-only Saha equation would recombine H in the dense electron-positron plasma
         s_rho = (4.0 * np.pi / 3.0) * n_e_full * BOHR_RADIUS**3
         s_T = (T / THERMAL_DESTRUCTION_T) ** 4
         s = s_rho + s_T
-        b, db_dlns = _smooth_step(s)
-        db_dln = db_dlns * s_rho / s               # d b / d ln rho
-        db_dlnT = db_dlns * 4.0 * s_T / s          # d b / d ln T
+        b, db, d2b = _smooth_step(s)
+        a_rho, a_T = s_rho / s, s_T / s                     # d ln s / d ln rho and d ln s / d ln T over 4
+        E_F, E_F_ln = fermi_energy(n_e_full)
     else:
-        b = db_dln = db_dlnT = np.zeros(shape)
-    sp, dsp = _softplus(eta)
-    # g = b / (1 - b) runs from 0 to infinity across the band: beyond it the bound states are gone
+        b = db = d2b = a_rho = a_T = E_F = E_F_ln = zero
+    # G = b / (1 - b) runs from 0 to infinity across the band: beyond it the bound states are gone. Its
+    # partials in u = ln s, then in ln rho (u_r = a_rho) and ln T (u_t = 4 a_T), first and second
     gone = b >= 1.0 - 1e-12
-    one_minus = np.where(gone, 1.0, 1.0 - b)
-    g = np.where(gone, 0.0, b / one_minus)
-    dg_dln = np.where(gone, 0.0, db_dln / one_minus**2)
-    dg_dlnT = np.where(gone, 0.0, db_dlnT / one_minus**2)
-    zero = np.zeros(shape)
-    ln_q, ln_w, w_eta, w_T, w_ln = [], [], [], [], []
+    om = np.where(gone, 1.0, 1.0 - b)
+    G = np.where(gone, 0.0, b / om)
+    G_u = np.where(gone, 0.0, db / om**2)
+    G_uu = np.where(gone, 0.0, d2b / om**2 + 2.0 * db**2 / om**3)
+    u_r, u_t = a_rho, 4.0 * a_T
+    G_r, G_t = G_u * u_r, G_u * u_t
+    G_rt = G_uu * u_r * u_t - G_u * a_rho * u_t            # d2u / dln rho dln T = -4 a_rho a_T
+    G_tt = G_uu * u_t**2 + 4.0 * G_u * u_t * a_rho          # d2u / dln T^2 = 16 a_T a_rho
+    ln_q, ln_w, w_T, w_ln, e_w, e_T, e_ln = [], [], [], [], [], [], []
     for j in range(n_stages):
         if j == Z:                     # the bare nucleus is never destroyed
-            ln_w.append(zero); w_eta.append(zero); w_T.append(zero); w_ln.append(zero)
+            for lst in (ln_w, w_T, w_ln, e_w, e_T, e_ln):
+                lst.append(zero)
         else:
-            depth = (C[Z] - C[j]) / kT + (Z - j) * (sp + MARGIN)
-            ln_w.append(np.where(gone, _DESTROYED, -g * depth))
-            w_eta.append(-g * (Z - j) * dsp)
-            w_T.append(g * (C[Z] - C[j]) / (kT * T) - dg_dlnT * depth / T)
-            w_ln.append(-dg_dln * depth)
+            D = C[Z] - C[j] + (Z - j) * E_F                      # F_w = G D, erg per particle
+            D_r = (Z - j) * E_F_ln
+            ln_w.append(np.where(gone, _DESTROYED, -G * D / kT))
+            w_T.append((G - G_t) * D / (kT * T))                # d ln w / dT at fixed rho
+            w_ln.append(-(G_r * D + G * D_r) / kT)
+            # E_w = F_w - T dF_w/dT = D (G - G_t), its partials; 0 where the state is gone (f = 0 there)
+            e_w.append(D * (G - G_t))
+            e_T.append(D * (G_t - G_tt) / T)
+            e_ln.append(D_r * (G - G_t) + D * (G_r - G_rt))
         ln_q.append(np.log(element.weights[j]) + ln_w[j] - j * eta - C[j] / kT)
     top = np.maximum.reduce(ln_q)
     ln_sum = top + np.log(sum(np.exp(lq - top) for lq in ln_q))
     f = [np.exp(lq - ln_sum) for lq in ln_q]
     ln_f_gw = [-j * eta - C[j] / kT - ln_sum for j in range(n_stages)]
-    # partials of ln q_j: eta -> -j; T -> C_j / (k T^2); ln rho -> d ln w_j / d ln rho = -h_j
-    d_eta = [w_eta[j] - j for j in range(n_stages)]
+    # partials of ln q_j: eta -> -j; T -> C_j / (k T^2) + d ln w_j / dT; ln rho -> d ln w_j / d ln rho
+    d_eta = [-float(j) + zero for j in range(n_stages)]
     d_T = [C[j] / (kT * T) + w_T[j] for j in range(n_stages)]
     d_ln = w_ln
 
@@ -223,4 +257,5 @@ def ionization_stages(element: Element, eta: np.ndarray, T: np.ndarray, n_e_full
         return [fj * (dj - mean) for fj, dj in zip(f, d)]
 
     return StageState(f=f, ln_f_gw=ln_f_gw, f_eta=partial(d_eta), f_T=partial(d_T), f_lnrho=partial(d_ln),
-                      ln_w=ln_w, ln_w_eta=w_eta, ln_w_T=w_T, ln_w_lnrho=w_ln, cumulative=C)
+                      ln_w=ln_w, ln_w_eta=[zero] * n_stages, ln_w_T=w_T, ln_w_lnrho=w_ln, e_w=e_w, e_w_T=e_T,
+                      e_w_lnrho=e_ln, cumulative=C)

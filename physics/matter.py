@@ -182,12 +182,15 @@ def _solve_saha(n_full, rho, T, saha, fixed, electrons, pairs):
     """ln n_e from ln n_e = ln n_free(eta(n_e, T)) where ionization is incomplete (1-D arrays).
 
     Phi(y) = y - ln n_free(eta(e^y, T)) increases with y (slope >= 1), so Newton
-    steps safeguarded by a bracket [lo, hi] converge; hi starts at ln n_full.
+    steps safeguarded by a bracket [lo, hi] converge; hi starts at ln n_full. A step that leaves the
+    bracket, or is not at most half the step before it, is replaced by bisection (rtsafe of Press et al.,
+    Numerical Recipes): across pressure ionization n_free(eta) is a steep step that Newton overshoots.
     """
     y = np.log(n_full)
     hi = y.copy()
     lo = np.log(rho * fixed) if fixed > 0 else np.full_like(y, -np.inf)
     active = np.arange(y.size)
+    dx_old = np.full(y.size, np.inf)
     for _ in range(_MAX_ITER):
         if active.size == 0:
             break
@@ -206,8 +209,9 @@ def _solve_saha(n_full, rho, T, saha, fixed, electrons, pairs):
         lo[active] = np.where(pos, lo[active], ya)
         new = ya - np.clip(phi / slope, -40.0, 40.0)
         la, ha = lo[active], hi[active]
-        outside = (new <= la) | (new >= ha)
+        outside = (new <= la) | (new >= ha) | (np.isfinite(la) & (2.0 * np.abs(new - ya) > dx_old[active]))
         new = np.where(outside & np.isfinite(la), 0.5 * (la + ha), np.where(outside, ha - 40.0, new))
+        dx_old[active] = np.abs(new - ya)
         small = np.abs(new - ya) < 1e-14 * np.maximum(1.0, np.abs(ya))
         y[active] = np.where(done, ya, new)
         active = active[~(done | small)]
@@ -341,6 +345,17 @@ def matter(rho, T, comp: Composition, electrons: str, ionization: str, pairs: bo
             Ei += N_i * f * C
             Ei_rho += N_i * C * df_rho
             Ei_T += N_i * C * df_T
+            # the pressure-ionization rule's free energy F_w = -kT ln w: k ln w is in the entropy above;
+            # its energy E_w = F_w - T dF_w/dT adds to E, and E_w / T to S (S_w = (E_w - F_w) / T)
+            ew = N_i * f * st.e_w[j]
+            ew_rho = N_i * (df_rho * st.e_w[j] + f * st.e_w_lnrho[j] / r)
+            ew_T = N_i * (df_T * st.e_w[j] + f * st.e_w_T[j])
+            Ei += ew
+            Ei_rho += ew_rho
+            Ei_T += ew_T
+            Si += ew / t
+            Si_rho += ew_rho / t
+            Si_T += ew_T / t - ew / t**2
 
     part = Part(P=P_e + P_ion, E=Ee + Ei, S=Se + Si, P_rho=Pe_rho + Pi_rho, P_T=Pe_T + Pi_T,
                 E_rho=Ee_rho + Ei_rho, E_T=Ee_T + Ei_T, S_rho=Se_rho + Si_rho, S_T=Se_T + Si_T)

@@ -30,7 +30,7 @@ from . import constants as const
 from .electrons import _CN
 from .eos.electron_kernel import electron_arrays, electron_point
 from .eos.parallel import serialized
-from .ionization import MARGIN, S_COMPLETE, S_ONSET, THERMAL_DESTRUCTION_T, BOHR_RADIUS
+from .ionization import S_COMPLETE, S_ONSET, THERMAL_DESTRUCTION_T, BOHR_RADIUS
 
 __all__ = ["solve_saha_compiled", "solve_saha_state"]
 
@@ -39,6 +39,7 @@ _THETA = const.k_B / const.m_e_c2
 _LN_NQ0 = math.log(2.0) + 1.5 * math.log(2.0 * math.pi * const.m_e * const.k_B / const.h**2)
 _PACK = (4.0 * math.pi / 3.0) * BOHR_RADIUS**3
 _WIDTH = math.log(S_COMPLETE / S_ONSET)
+_XF0 = const.hbar * (3.0 * math.pi**2) ** (1.0 / 3.0) / (const.m_e * const.c)   # x_F = _XF0 n^(1/3)
 _TOL = 1e-13
 #: interleaved tasks and their blocks of points in the parallel loop of _many_state
 TASKS = 64
@@ -60,27 +61,23 @@ def _step_b(s):
 
 
 @njit(cache=True, error_model="numpy")
-def _lnq(j, Zi, lng, C, eta, kT, gb, gone, sp, dsp):
-    """ln q_j of stage j and its eta-partial (ionization_stages, one point)."""
+def _lnq(j, Zi, lng, C, eta, kT, gb, gone, ef):
+    """ln q_j of stage j and its eta-partial (ionization_stages, one point); ef = E_F(n_full) / kT."""
     if j == Zi:                       # the bare nucleus is never destroyed
         lnw = 0.0
-        dw = 0.0
     elif gone:
         lnw = -1.0e300
-        dw = 0.0
     else:
-        depth = (C[Zi] - C[j]) / kT + (Zi - j) * (sp + MARGIN)
-        lnw = -gb * depth
-        dw = -gb * (Zi - j) * dsp
-    return lng[j] + lnw - j * eta - C[j] / kT, dw - j
+        lnw = -gb * ((C[Zi] - C[j]) / kT + (Zi - j) * ef)
+    return lng[j] + lnw - j * eta - C[j] / kT, -float(j)
 
 
 @njit(cache=True, error_model="numpy")
-def _zbar(Zi, lng, C, eta, kT, gb, gone, sp, dsp):
+def _zbar(Zi, lng, C, eta, kT, gb, gone, ef):
     """Mean charge of an element with Zi <= 2 and its eta-partial at fixed T and rho (no allocation)."""
-    l0, d0 = _lnq(0, Zi, lng, C, eta, kT, gb, gone, sp, dsp)
-    l1, d1 = _lnq(1, Zi, lng, C, eta, kT, gb, gone, sp, dsp)
-    l2, d2 = (_lnq(2, Zi, lng, C, eta, kT, gb, gone, sp, dsp) if Zi == 2 else (-math.inf, 0.0))
+    l0, d0 = _lnq(0, Zi, lng, C, eta, kT, gb, gone, ef)
+    l1, d1 = _lnq(1, Zi, lng, C, eta, kT, gb, gone, ef)
+    l2, d2 = (_lnq(2, Zi, lng, C, eta, kT, gb, gone, ef) if Zi == 2 else (-math.inf, 0.0))
     top = max(l0, max(l1, l2))
     q0 = math.exp(l0 - top)
     q1 = math.exp(l1 - top)
@@ -92,22 +89,30 @@ def _zbar(Zi, lng, C, eta, kT, gb, gone, sp, dsp):
 
 
 @njit(cache=True, error_model="numpy")
-def _charge(eta, kT, gb, gone, fixed, el_Z, el_N, el_lng, el_C):
+def _charge(eta, kT, gb, gone, ef, fixed, el_Z, el_N, el_lng, el_C):
     """Free electrons per gram over rho (the fixed ones plus sum N zbar) and its eta-partial."""
-    e = math.exp(-abs(eta))
-    sp = max(eta, 0.0) + math.log1p(e)          # softplus, no overflow
-    dsp = 1.0 / (1.0 + e) if eta >= 0.0 else e / (1.0 + e)       # its derivative, 1 / (1 + e^-eta)
     zsum = fixed
     zeta = 0.0
     for k in range(el_Z.size):
-        zb, dz = _zbar(el_Z[k], el_lng[k], el_C[k], eta, kT, gb, gone, sp, dsp)
+        zb, dz = _zbar(el_Z[k], el_lng[k], el_C[k], eta, kT, gb, gone, ef)
         zsum += el_N[k] * zb
         zeta += el_N[k] * dz
     return zsum, zeta
 
 
 @njit(cache=True, error_model="numpy")
-def _start(lnn_full, lo, rho, T, fixed, el_Z, el_N, el_lng, el_C, kT, gb, gone):
+def _rule(n_full, T):
+    """The pressure-ionization rule at one point: G = b / (1 - b), gone (b = 1) and E_F(n_full) / kT."""
+    s = _PACK * n_full + (T / THERMAL_DESTRUCTION_T) ** 4
+    b = _step_b(s)
+    gone = b >= 1.0 - 1e-12
+    x = _XF0 * math.exp(math.log(n_full) / 3.0)
+    ef = const.m_e_c2 * x * x / (math.sqrt(1.0 + x * x) + 1.0) / (_K * T)
+    return (0.0 if gone else b / (1.0 - b)), gone, ef
+
+
+@njit(cache=True, error_model="numpy")
+def _start(lnn_full, lo, rho, T, fixed, el_Z, el_N, el_lng, el_C, kT, gb, gone, ef):
     """A starting ln n_e: the same equation with non-degenerate, non-relativistic electrons,
     eta = ln(n_e / n_Q(T)), solved by cheap Newton steps (no table reads). Where that start would be
     degenerate (eta > -1) the classical eta is no guide: start from full ionization, as the numpy path does."""
@@ -117,7 +122,7 @@ def _start(lnn_full, lo, rho, T, fixed, el_Z, el_N, el_lng, el_C, kT, gb, gone):
         eta = y - lnQ
         if eta > -1.0:
             return lnn_full
-        zsum, zeta = _charge(eta, kT, gb, gone, fixed, el_Z, el_N, el_lng, el_C)
+        zsum, zeta = _charge(eta, kT, gb, gone, ef, fixed, el_Z, el_N, el_lng, el_C)
         phi = y - math.log(rho * zsum)
         new = y - min(max(phi / (1.0 - zeta / zsum), -40.0), 40.0)
         new = min(max(new, lo), lnn_full)
@@ -131,20 +136,17 @@ def _start(lnn_full, lo, rho, T, fixed, el_Z, el_N, el_lng, el_C, kT, gb, gone):
 def _one(lnn_full, rho, T, fixed, el_Z, el_N, el_lng, el_C, tab, pairs, buf):
     """Root y = ln n_e at one point; returns (y, ok, fresh): fresh if buf holds the gas at exp(y)."""
     kT = _K * T
-    s_rho = _PACK * math.exp(lnn_full)
-    s = s_rho + (T / THERMAL_DESTRUCTION_T) ** 4
-    b = _step_b(s)
-    gone = b >= 1.0 - 1e-12
-    gb = 0.0 if gone else b / (1.0 - b)
+    gb, gone, ef = _rule(math.exp(lnn_full), T)
     hi = lnn_full
     lo = math.log(rho * fixed) if fixed > 0.0 else -math.inf
-    y = _start(lnn_full, lo, rho, T, fixed, el_Z, el_N, el_lng, el_C, kT, gb, gone)
+    y = _start(lnn_full, lo, rho, T, fixed, el_Z, el_N, el_lng, el_C, kT, gb, gone, ef)
     fresh = False
     lo_seen = False
+    dx_old = math.inf
     for _ in range(_MAX_ITER):
         if not electron_point(math.exp(y), T, tab, buf):
             return y, False, False
-        zsum, zeta = _charge(buf[0], kT, gb, gone, fixed, el_Z, el_N, el_lng, el_C)
+        zsum, zeta = _charge(buf[0], kT, gb, gone, ef, fixed, el_Z, el_N, el_lng, el_C)
         n_free = rho * zsum
         phi = y - math.log(n_free)
         if abs(phi) < _TOL:
@@ -162,8 +164,13 @@ def _one(lnn_full, rho, T, fixed, el_Z, el_N, el_lng, el_C, tab, pairs, buf):
         # elements give up (almost) nothing (cold matter, H and He neutral), the Newton step lands exactly on
         # it, and the root lies within rounding above it (bisecting towards it took ~45 table reads)
         onto_bound = new == lo and not lo_seen
-        if (new <= lo and not onto_bound) or new >= hi:
+        # bisect where the Newton step leaves the bracket, or where it does not shrink to half the step
+        # before it (Press et al., Numerical Recipes, rtsafe): across pressure ionization n_free(eta) is a
+        # steep step, and Newton from either side overshoots to the other in a slowly closing 2-cycle
+        slow = lo_seen and math.isfinite(lo) and 2.0 * abs(step) > dx_old
+        if (new <= lo and not onto_bound) or new >= hi or slow:
             new = 0.5 * (lo + hi) if math.isfinite(lo) else hi - 40.0
+        dx_old = abs(new - y)
         if abs(new - y) < 1e-14 * max(1.0, abs(y)):
             y = new
             fresh = False
@@ -215,11 +222,8 @@ def _one_state(n_full, rho, T, fixed, el_Z, el_N, el_lng, el_C, tab, pairs, buf)
     if lnn_full < ln0 or not electron_point(n_full, T, tab, buf):
         return n_full, False
     kT = _K * T
-    s = _PACK * n_full + (T / THERMAL_DESTRUCTION_T) ** 4
-    b = _step_b(s)
-    gone = b >= 1.0 - 1e-12
-    gb = 0.0 if gone else b / (1.0 - b)
-    zsum, _ = _charge(buf[0], kT, gb, gone, fixed, el_Z, el_N, el_lng, el_C)
+    gb, gone, ef = _rule(n_full, T)
+    zsum, _ = _charge(buf[0], kT, gb, gone, ef, fixed, el_Z, el_N, el_lng, el_C)
     if not lnn_full - math.log(rho * zsum) > _TOL:
         return n_full, (not pairs) or _positrons_negligible(buf[0], T, n_full)
     y, ok, fresh = _one(lnn_full, rho, T, fixed, el_Z, el_N, el_lng, el_C, tab, pairs, buf)
