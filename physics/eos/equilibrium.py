@@ -736,10 +736,12 @@ def _electrons(y1, T, classical, etab, out, xc_on):
 
 
 @njit(cache=True, error_model="numpy")
-def _newton_point(y, lnrho, lnT, classical, etab, sp, h2tab, W, diag, el, PLc):
+def _newton_point(y, lnrho, lnT, classical, etab, sp, h2tab, W, diag, el, PLc, fe):
     """Damped Newton from y (modified in place) at one point, the electron gas evaluated every step.
 
-    Returns the number of iterations, or -1 if it did not converge (or the electrons left the table).
+    Returns the number of iterations, or -1 if it did not converge (or the electrons left the table). At
+    convergence ``el`` holds the electron gas at y and ``fe[0]`` the free energy per gram there. The
+    evaluation of an accepted line-search trial is the next iteration's (one evaluation per step).
     """
     nuc_N, nuc_Z, nuc_lnlam3, nuc_start, nuc_h2, st_E, st_lng, st_v, h2_v, h2_D0, coul_on = sp
     tx, ty, t1, t2 = h2tab
@@ -751,15 +753,16 @@ def _newton_point(y, lnrho, lnT, classical, etab, sp, h2tab, W, diag, el, PLc):
     best = 1e300
     stall = 0
     misses = 0
+    if not _electrons(y[0], T, classical, etab, el, coul_on):
+        return -1
+    o = _point(y, lnrho, lnT, el, nuc_N, nuc_Z, nuc_lnlam3, nuc_start, nuc_h2, st_E, st_lng, st_v,
+               h2_v, h2_D0, coul_on, tx, ty, t1, t2, diag, W, PLc)
     for it in range(_MAX_ITER):
-        if not _electrons(y[0], T, classical, etab, el, coul_on):
-            return -1
-        o = _point(y, lnrho, lnT, el, nuc_N, nuc_Z, nuc_lnlam3, nuc_start, nuc_h2, st_E, st_lng, st_v,
-                   h2_v, h2_D0, coul_on, tx, ty, t1, t2, diag, W, PLc)
         Rs = (o[0], o[1], o[2], o[3])
         _jacobian(Rs, A, b, 0)
         res = _size(b, y[2])
         if res < _NEWTON_TOL:
+            fe[0] = o[5][0] - T * o[6][0]
             return it
         if not math.isfinite(res):
             return -1
@@ -775,6 +778,7 @@ def _newton_point(y, lnrho, lnT, classical, etab, sp, h2tab, W, diag, el, PLc):
         m0 = _merit(Rs)
         lam = 1.0
         found = False
+        ot = o
         for _ in range(8):
             _trial(y, d, lam, yt)
             if _electrons(yt[0], T, classical, etab, elt, coul_on):
@@ -792,6 +796,15 @@ def _newton_point(y, lnrho, lnT, classical, etab, sp, h2tab, W, diag, el, PLc):
             return -1
         for q in range(4):
             y[q] = yt[q]
+        if found:                      # the trial's evaluation is the state at the new y
+            o = ot
+            for q in range(12):
+                el[q] = elt[q]
+        else:
+            if not _electrons(y[0], T, classical, etab, el, coul_on):
+                return -1
+            o = _point(y, lnrho, lnT, el, nuc_N, nuc_Z, nuc_lnlam3, nuc_start, nuc_h2, st_E, st_lng, st_v,
+                       h2_v, h2_D0, coul_on, tx, ty, t1, t2, diag, W, PLc)
     return -1
 
 
@@ -825,7 +838,8 @@ def _continue_down_in_T(y, lnrho, lnT, classical, etab, sp, h2tab, W, diag, el, 
     x0 = lnT + 2.0 * math.log(10.0)
     x = x0
     step = (x0 - lnT) / 40.0
-    it = _newton_point(yk, lnrho, x, classical, etab, sp, h2tab, W, diag, el, PLc)
+    fe = np.empty(1)
+    it = _newton_point(yk, lnrho, x, classical, etab, sp, h2tab, W, diag, el, PLc, fe)
     if it < 0:
         return -1
     ytry = np.empty(4)
@@ -837,7 +851,7 @@ def _continue_down_in_T(y, lnrho, lnT, classical, etab, sp, h2tab, W, diag, el, 
         xn = max(lnT, x - step)
         for q in range(4):
             ytry[q] = yk[q]
-        it = _newton_point(ytry, lnrho, xn, classical, etab, sp, h2tab, W, diag, el, PLc)
+        it = _newton_point(ytry, lnrho, xn, classical, etab, sp, h2tab, W, diag, el, PLc, fe)
         if it < 0:
             step *= 0.5
             if step < 1e-4:
@@ -872,28 +886,23 @@ def _solve_points(lnrho, lnT, classical, etab, sp, h2tab, Y, status):
         el = np.empty(12)
         yA = np.empty(4)
         yB = np.empty(4)
+        fe = np.empty(1)
         T = math.exp(lnT[p])
         _full_start(lnrho[p], lnT[p], nuc_N, nuc_Z, coul_on, yA)
-        itA = _newton_point(yA, lnrho[p], lnT[p], classical, etab, sp, h2tab, W, diag, el, PLc)
+        itA = _newton_point(yA, lnrho[p], lnT[p], classical, etab, sp, h2tab, W, diag, el, PLc, fe)
         if itA == -1 and not _electrons(yA[0], T, classical, etab, el, coul_on):
             status[p] = -2
             continue
-        FA = 0.0
-        if itA >= 0:
-            o = _point(yA, lnrho[p], lnT[p], el, nuc_N, nuc_Z, nuc_lnlam3, nuc_start, nuc_h2, st_E, st_lng,
-                       st_v, h2_v, h2_D0, coul_on, tx, ty, t1, t2, diag, W, PLc)
-            FA = o[5][0] - T * o[6][0]
+        FA = fe[0] if itA >= 0 else 0.0
         chosen = 0 if itA == 0 else (1 if itA > 0 else -1)
         for q in range(4):
             Y[p, q] = yA[q]
         if T < 3e5 or itA < 0:
             _ideal_saha_start(lnrho[p], lnT[p], nuc_N, nuc_Z, nuc_start, nuc_h2, st_E, st_lng, st_v, h2_v,
                               h2_D0, tx, ty, t1, t2, L1, yB)
-            itB = _newton_point(yB, lnrho[p], lnT[p], classical, etab, sp, h2tab, W, diag, el, PLc)
+            itB = _newton_point(yB, lnrho[p], lnT[p], classical, etab, sp, h2tab, W, diag, el, PLc, fe)
             if itB >= 0:
-                o = _point(yB, lnrho[p], lnT[p], el, nuc_N, nuc_Z, nuc_lnlam3, nuc_start, nuc_h2, st_E,
-                           st_lng, st_v, h2_v, h2_D0, coul_on, tx, ty, t1, t2, diag, W, PLc)
-                FB = o[5][0] - T * o[6][0]
+                FB = fe[0]
                 if itA < 0 or FB < FA - 1e-12 * abs(FA):
                     chosen = 2
                     for q in range(4):
