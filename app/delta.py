@@ -123,32 +123,80 @@ def _part_hash(path, value) -> str:
     return _hash(value)
 
 
+def _is_track(trace) -> bool:
+    return str(trace.get("meta") or "").startswith("track:")
+
+
+def _track_span(fig: dict):
+    """[first, end) of the track traces' parts in :func:`_parts` order, when the tracks are the last traces
+    (as app.figures draws them: over everything else); None when a track trace is followed by another."""
+    data = fig.get("data") or ()
+    flags = [_is_track(t) for t in data]
+    first = next((i for i, f in enumerate(flags) if f), len(flags))
+    if not all(flags[first:]):
+        return None
+    before = sum(len(t) for t in data[:first])
+    return [before, before + sum(len(t) for t in data[first:])]
+
+
 def fingerprint(fig: dict) -> dict:
-    """The structure hash and the per-property hashes of a figure dict (what the browser store keeps)."""
-    return {"shape": _structure(fig), "parts": [_part_hash(p, v) for p, v in _parts(fig)]}
+    """The structure hash and the per-property hashes of a figure dict (what the browser store keeps),
+    with ``base``, the structure hash of the figure without its track traces, and ``tracks``, where the
+    tracks' part hashes sit in ``parts`` (so a preview drawn without tracks can patch the rest)."""
+    base = {"data": [t for t in fig.get("data") or () if not _is_track(t)], "layout": fig.get("layout") or {}}
+    return {"shape": _structure(fig), "base": _structure(base), "tracks": _track_span(fig),
+            "parts": [_part_hash(p, v) for p, v in _parts(fig)]}
 
 
-def figure_update(fig, shown=None):
+def _patch(d: dict, old: list, new: list) -> Patch:
+    patch = Patch()
+    for (path, value), was, now in zip(_parts(d), old, new):
+        if was != now:
+            target = patch
+            for key in path[:-1]:
+                target = target[key]
+            target[path[-1]] = encode(value)
+    return patch
+
+
+def _kept_tracks(shown, new: dict):
+    """(parts of the shown figure without its tracks, their span) when ``new`` (drawn without tracks) has the
+    structure of the shown figure less its tracks; else None."""
+    if not isinstance(shown, dict) or shown.get("base") != new["shape"]:
+        return None
+    parts, span = shown.get("parts"), shown.get("tracks")
+    if not (isinstance(parts, list) and isinstance(span, list) and len(span) == 2
+            and all(isinstance(i, int) and not isinstance(i, bool) for i in span) and 0 <= span[0] <= span[1] <= len(parts)):
+        return None
+    base = parts[:span[0]] + parts[span[1]:]
+    return (base, span) if len(base) == len(new["parts"]) else None
+
+
+def figure_update(fig, shown=None, keep_tracks: bool = False):
     """(what to send, fingerprint to store) for a new figure, given the fingerprint of the one shown.
 
     ``fig`` is a plotly figure or a figure dict (whose traces may be dicts or plotly trace objects);
     ``shown`` the browser's fingerprint (None or anything
     malformed: the whole figure goes). What is sent is a ``Patch`` when the structure is the same,
     else the whole figure as a dict with typed arrays.
+
+    ``keep_tracks``: ``fig`` was drawn without the tracks (a coarse preview while a slider moves): the
+    Patch leaves the track traces the browser shows where they are, and the fingerprint returned still
+    describes them (the full map on release patches them if they changed).
     """
     d = fig.to_plotly_json() if hasattr(fig, "to_plotly_json") else dict(fig)
     # a plain figure dict may hold plotly trace objects (the tracks drawn over the map)
     d = {"data": [t.to_plotly_json() if hasattr(t, "to_plotly_json") else t for t in d.get("data") or ()],
          "layout": dict(d.get("layout") or {})}
     new = fingerprint(d)
+    if keep_tracks:
+        kept = _kept_tracks(shown, new)
+        if kept is not None:
+            base, (a, b) = kept
+            parts = new["parts"][:a] + shown["parts"][a:b] + new["parts"][a:]
+            return _patch(d, base, new["parts"]), {**new, "shape": shown["shape"], "base": new["shape"],
+                                                   "tracks": [a, b], "parts": parts}
     old = shown.get("parts") if isinstance(shown, dict) and shown.get("shape") == new["shape"] else None
     if not isinstance(old, list) or len(old) != len(new["parts"]):
         return encode(d), new
-    patch = Patch()
-    for (path, value), was, now in zip(_parts(d), old, new["parts"]):
-        if was != now:
-            target = patch
-            for key in path[:-1]:
-                target = target[key]
-            target[path[-1]] = encode(value)
-    return patch, new
+    return _patch(d, old, new["parts"]), new

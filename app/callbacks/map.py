@@ -354,14 +354,27 @@ def map_answer(drag, shape, triggered, **controls) -> dict:
         out = {key: no_update for key in ("figure", "readout", "view", "shape", *MESSAGES)}
         out["phys-message"] = NO_PREVIEW
         return out
-    out = update_map(preview=preview, plain=True, **(dragged_controls(drag, controls) if preview else controls))
+    if not preview:
+        out = update_map(plain=True, **controls)
+        out["shape"] = no_update
+        if out["figure"] is not no_update:
+            out["figure"], out["shape"] = delta.figure_update(out["figure"], shape)
+        return out
+    # A preview leaves the tracks where the browser shows them (delta.figure_update, keep_tracks): drawing
+    # them costs more than the map (each is evaluated again for the composition, and hashed), ~0.9 s a
+    # preview for a 20,000-row track; the full map on release draws them for the new composition. Only
+    # where the map's own structure changes (a line appears or goes) is the whole figure sent, tracks drawn.
+    dragged = dragged_controls(drag, controls)
+    out = update_map(preview=True, plain=True, **{**dragged, "tracks": None})
     out["shape"] = no_update
-    if preview:
-        # while the hand moves, an empty message is not sent again (each output costs the browser a
-        # pass over the page's components); the full map on release writes them all
-        out.update({m: no_update for m in MESSAGES if out[m] == ""})
     if out["figure"] is not no_update:
-        out["figure"], out["shape"] = delta.figure_update(out["figure"], shape)
+        out["figure"], out["shape"] = delta.figure_update(out["figure"], shape, keep_tracks=True)
+        if isinstance(out["figure"], dict) and controls.get("tracks"):
+            out = update_map(preview=True, plain=True, **dragged)
+            out["figure"], out["shape"] = delta.figure_update(out["figure"], shape)
+    # while the hand moves, an empty message is not sent again (each output costs the browser a
+    # pass over the page's components); the full map on release writes them all
+    out.update({m: no_update for m in MESSAGES if out[m] == ""})
     return out
 
 

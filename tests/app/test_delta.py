@@ -124,3 +124,46 @@ def test_the_plain_figure_the_map_callback_sends_is_the_plotly_figure():
     as_figure, _ = delta.figure_update(map_cb.update_map(**c)["figure"])
     as_dict, _ = delta.figure_update(map_cb.update_map(plain=True, **c)["figure"])
     assert _sent(as_dict) == _sent(as_figure)
+
+
+def _demo_store():
+    from thermoplane import physics as ph
+    from thermoplane.app.callbacks.tracks import add_demo
+    return add_demo(None, ph.Composition.from_xyz(0.70, 0.28, 0.02), {})
+
+
+def test_a_preview_patches_the_map_and_leaves_the_tracks_as_they_are(monkeypatch):
+    store = _demo_store()
+    full = map_cb.map_answer({"drag": False}, None, ["comp-X.value"], **controls(X=0.70, Y=0.28, tracks=store))
+    shown, shape = _sent(full["figure"]), full["shape"]
+    first = next(i for i, t in enumerate(shown["data"]) if str(t.get("meta", "")).startswith("track:"))
+    assert shape["tracks"][0] < shape["tracks"][1] == len(shape["parts"]) - len(shown["layout"])
+    # a preview never draws the tracks (each would be evaluated again for the composition)
+    import thermoplane.app.view as view_mod
+    monkeypatch.setattr(view_mod.tk, "evaluate_stored", lambda *a, **k: pytest.fail("track evaluated in a preview"))
+    drag = {"drag": True, "key": "X", "value": 0.65}
+    pre = map_cb.map_answer(drag, shape, ["comp-drag.data"], **controls(X=0.70, Y=0.28, zauto=["auto"], tracks=store))
+    assert isinstance(pre["figure"], Patch)
+    ops = _sent(pre["figure"])["operations"]
+    assert ["data", 0, "z"] in [op["location"] for op in ops]
+    assert all(op["location"][0] != "data" or op["location"][1] < first for op in ops)
+    after = apply_patch(shown, _sent(pre["figure"]))
+    assert after["data"][first:] == shown["data"][first:]               # the tracks as drawn before
+    # the fingerprint still describes the figure in the browser, tracks included
+    a, b = shape["tracks"]
+    assert pre["shape"]["shape"] == shape["shape"] and pre["shape"]["tracks"] == [a, b]
+    assert pre["shape"]["parts"][a:b] == shape["parts"][a:b] and pre["shape"]["parts"][:a] != shape["parts"][:a]
+    monkeypatch.undo()
+    # the release draws them for the new composition: a Patch of what the browser has that gives the whole
+    done = map_cb.map_answer({"drag": False}, pre["shape"], ["comp-X.value"],
+                             **controls(X=0.65, Y=0.33, tracks=store))
+    whole = _sent(delta.figure_update(map_cb.update_map(plain=True, **controls(X=0.65, Y=0.33, tracks=store))["figure"])[0])
+    assert isinstance(done["figure"], Patch) and apply_patch(after, _sent(done["figure"])) == whole
+
+
+def test_keep_tracks_falls_back_to_the_whole_figure_when_the_shown_one_does_not_match():
+    fig = _figure(layers=["equality"])
+    for bad in (None, "junk", {"base": "x"}, {"base": delta.fingerprint(_sent(delta.figure_update(fig)[0]))["shape"],
+                                               "parts": [], "tracks": [0, 5]}):
+        sent, shape = delta.figure_update(fig, bad, keep_tracks=True)
+        assert isinstance(sent, dict) and shape["tracks"] is not None

@@ -44,24 +44,29 @@ def _full_map(pg, n=300, timeout=60000):
     return pg.evaluate(HEATMAP)
 
 
+def _grab_X(pg, to: float):
+    """Tick "Z = 1 − X − Y" (every X keeps the sum 1), start counting redraws, press the X slider's thumb;
+    returns (x of the thumb, x at fraction ``to`` of the slider's track, y of both)."""
+    pg.check("#comp-zauto input")
+    pg.wait_for_function("() => document.querySelector('#comp-Z').disabled")
+    pg.evaluate(COUNT_REDRAWS)
+    track = pg.locator("#comp-X-slider .dash-slider-track").bounding_box()
+    box = pg.locator("#comp-X-slider [role=slider]").bounding_box()
+    x0, y = box["x"] + box["width"] / 2, box["y"] + box["height"] / 2
+    pg.mouse.move(x0, y)
+    pg.mouse.down()
+    return x0, track["x"] + to * track["width"], y
+
+
 def test_dragging_X_redraws_while_the_hand_moves(server_url, page):
     page.goto(server_url)
     _full_map(page)
     screenshot(page, "drag_before")
-    page.check("#comp-zauto input")                      # Z follows X and Y, so every X keeps the sum 1
-    page.wait_for_function("() => document.querySelector('#comp-Z').disabled")
-    page.evaluate(COUNT_REDRAWS)
-    thumb = page.locator("#comp-X-slider [role=slider]")
-    track = page.locator("#comp-X-slider .dash-slider-track").bounding_box()
-    box = thumb.bounding_box()
-    y = box["y"] + box["height"] / 2
-    page.mouse.move(box["x"] + box["width"] / 2, y)
-    page.mouse.down()
+    x0, x1, y = _grab_X(page, 0.3)
     t0 = time.monotonic()
     # from X = 0.7 down to about 0.3: a new hand position every ~60 ms (faster than the map can follow, so
     # the redraw rate measures the map, not the hand; each move also waits for the page to take it)
     steps = 48
-    x0, x1 = box["x"] + box["width"] / 2, track["x"] + 0.3 * track["width"]
     for i in range(1, steps + 1):
         page.mouse.move(x0 + (x1 - x0) * i / steps, y)
         page.wait_for_timeout(60)
@@ -188,4 +193,32 @@ def test_a_patched_map_looks_like_the_same_map_sent_whole(server_url, page, brow
     assert share is not None, "the two maps differ in size"
     print(f"\npatched vs whole: {share * 100:.3f} % of the map's pixels differ")
     assert share < 1e-3
+    assert page.console_errors == []
+
+
+#: JS: the number of track traces on the map (-1 before the plot exists).
+TRACK_TRACES = """() => { const gd = document.querySelector('#plane-graph .js-plotly-plot');
+  return gd && gd.data ? gd.data.filter(d => String(d.meta || '').startsWith('track:')).length : -1; }"""
+
+
+def test_tracks_stay_on_the_map_while_a_slider_moves(server_url, page):
+    # a preview leaves the tracks as drawn (it does not evaluate them again): they stay while the hand moves
+    page.goto(server_url)
+    _full_map(page)
+    page.click("#tracks-demo")
+    page.wait_for_function(f"() => ({TRACK_TRACES})() > 0", timeout=60000)
+    n = page.evaluate(TRACK_TRACES)
+    x0, x1, y = _grab_X(page, 0.5)
+    for i in range(1, 13):
+        page.mouse.move(x0 + (x1 - x0) * i / 12, y)
+        page.wait_for_timeout(80)
+    page.wait_for_function("() => window.__redraws.some(e => e[1] < 300)", timeout=30000)
+    assert page.evaluate(TRACK_TRACES) == n                 # during the drag: a coarse map, the tracks kept
+    screenshot(page, "drag_tracks_during")
+    page.mouse.up()
+    page.wait_for_function("() => { const r = window.__redraws; return r.length && r[r.length - 1][1] === 300; }",
+                           timeout=60000)
+    page.wait_for_timeout(300)
+    assert page.evaluate(TRACK_TRACES) == n                 # and after it, drawn for the new composition
+    screenshot(page, "drag_tracks_after")
     assert page.console_errors == []
