@@ -49,12 +49,23 @@ def _typed_array(value: np.ndarray) -> dict:
     return spec
 
 
+_PLAIN = (str, int, float, bool, type(None))
+
+
+def _plain(value) -> bool:
+    """A list (or list of lists) of plain scalars only: hashed through one repr (a track's hover texts are
+    ~10^5 strings; one update each took ~0.5 s a map)."""
+    return all(type(v) in _PLAIN or (type(v) in (list, tuple) and all(type(w) in _PLAIN for w in v))
+               for v in value)
+
+
 def encode(value):
     """``value`` with every numeric numpy array as a plotly.js typed-array spec (object arrays as lists)."""
     if isinstance(value, np.ndarray):
         if value.dtype.kind in "fiub" and value.size:
             return _typed_array(value)
-        return [encode(v) for v in value.tolist()]
+        plain = value.tolist()
+        return plain if isinstance(plain, list) and _plain(plain) else encode(plain)
     if isinstance(value, dict):
         return {k: encode(v) for k, v in value.items()}
     if isinstance(value, (list, tuple)):
@@ -65,6 +76,9 @@ def encode(value):
 
 
 def _feed(h, value) -> None:
+    if isinstance(value, (list, tuple)) and _plain(value):
+        h.update(b"R" + repr(value).encode())
+        return
     if isinstance(value, np.ndarray):
         if value.dtype.kind == "O":
             _feed(h, value.tolist())

@@ -167,3 +167,12 @@ def test_keep_tracks_falls_back_to_the_whole_figure_when_the_shown_one_does_not_
                                                "parts": [], "tracks": [0, 5]}):
         sent, shape = delta.figure_update(fig, bad, keep_tracks=True)
         assert isinstance(sent, dict) and shape["tracks"] is not None
+
+
+def test_lists_of_plain_values_hash_and_encode_in_one_piece():
+    # a track's hover texts: an object array of strings, hashed by one repr and encoded by one tolist
+    texts = np.array([[f"row {i}", "β = 0.5"] for i in range(1000)], dtype=object)
+    assert delta.encode(texts) == texts.tolist()
+    assert delta._hash(texts) == delta._hash(texts.tolist()) != delta._hash(texts[:-1].tolist())
+    mixed = np.array([{"a": np.float32(1.5)}, "x"], dtype=object)
+    assert delta.encode(mixed) == [{"a": 1.5}, "x"]
