@@ -37,8 +37,8 @@ import numpy as np
 
 from . import constants as const
 from .composition import Composition
-from .electron_table import _merge, onset_state, table_eta, table_state
-from .electron_fast import pair_free_state, state_from_points
+from .electron_table import _merge, table_eta, table_state
+from .electron_fast import pair_free_state, pair_onset_state, pair_table_state, state_from_points
 from .electrons import _CN, ElectronGas, ElectronState
 from .ionization import ELEMENTS, ionization_stages
 from .saha_kernel import solve_saha_compiled, solve_saha_state
@@ -94,7 +94,8 @@ def fermi_state(n, T, pairs: bool) -> ElectronState:
     Without pairs: the pair-free table (compiled over the map, physics.electron_fast). With pairs: the same
     where positrons are negligible (bound above), the pair table in the hot pair plasma, and the fine
     pair-onset tables (physics.electron_table.onset_state, exact quadrature outside them) in
-    between, where the main pair table is not accurate enough.
+    between, where the main pair table is not accurate enough; both tables read by the compiled, parallel
+    reader of physics.electron_fast (pair_table_state, pair_onset_state).
     Each point's values come from one consistent source.
     """
     st0 = pair_free_state(n, T)
@@ -108,8 +109,7 @@ def fermi_state(n, T, pairs: bool) -> ElectronState:
     onset = need & ~hot
     keep = ~need
     return _merge(n.size, [(keep, lambda nn, tt: _subset(st0, keep)),
-                           (hot, lambda nn, tt: table_state(nn, tt, pairs=True)),
-                           (onset, onset_state)], n, T)
+                           (hot, pair_table_state), (onset, pair_onset_state)], n, T)
 
 
 def _subset(st: ElectronState, mask) -> ElectronState:

@@ -22,9 +22,9 @@ import numpy as np
 from numba import njit
 
 from .. import constants as const
-from ..electron_table import _E_UNIT, _MC2, _SERIES, _X0, _X_SERIES, TABLE_RANGE, _table
+from ..electron_table import _E_UNIT, _MC2, _SERIES, _SHIFT, _X0, _X_SERIES, TABLE_RANGE, _table
 
-__all__ = ["electron_arrays", "electron_point", "classical_point"]
+__all__ = ["electron_arrays", "electron_point", "classical_point", "pair_arrays", "pair_point"]
 
 _K = const.k_B
 _LN_NQ0 = math.log(2.0) + 1.5 * math.log(2.0 * math.pi * const.m_e * const.k_B / const.h**2)
@@ -81,6 +81,35 @@ def classical_point(n, T, out):
 
 
 @njit(cache=True, error_model="numpy")
+def _biquintic(c, zu, zv, hu, hv):
+    """(G, G_u, G_uu, G_v, G_uv, G_vv) of one cell's biquintic (36 monomial coefficients, row 6 l + k) at
+    (zu, zv) in the unit cell, derivatives in u = ln n and v = ln T (the numpy reader's arithmetic)."""
+    # v-contraction: a_q[k] = d^q/dzv^q sum_l C[6 l + k] zv^l, q = 0, 1, 2
+    G = 0.0
+    Gu = 0.0
+    Guu = 0.0
+    Gv = 0.0
+    Guv = 0.0
+    Gvv = 0.0
+    for k in range(5, -1, -1):
+        a0 = c[30 + k]
+        a1 = 0.0
+        a2 = 0.0
+        for l in range(4, -1, -1):
+            a2 = a2 * zv + 2.0 * a1
+            a1 = a1 * zv + a0
+            a0 = a0 * zv + c[6 * l + k]
+        # u-contraction by Horner with derivatives
+        Guu = Guu * zu + 2.0 * Gu
+        Gu = Gu * zu + G
+        G = G * zu + a0
+        Guv = Guv * zu + Gv
+        Gv = Gv * zu + a1
+        Gvv = Gvv * zu + a2
+    return G, Gu / hu, Guu / (hu * hu), Gv / hv, Guv / (hu * hv), Gvv / (hv * hv)
+
+
+@njit(cache=True, error_model="numpy")
 def electron_point(n, T, tab, out):
     """The electron gas at (n, T) into out (12 floats, layout of the equilibrium kernel); True if done.
 
@@ -108,36 +137,7 @@ def electron_point(n, T, tab, out):
         i = 0
     if j < 0:
         j = 0
-    zu = x - i
-    zv = y - j
-    c = CT[i * (nv - 1) + j]
-    # v-contraction: a_q[k] = d^q/dzv^q sum_l C[6 l + k] zv^l, q = 0, 1, 2
-    G = 0.0
-    Gu = 0.0
-    Guu = 0.0
-    Gv = 0.0
-    Guv = 0.0
-    Gvv = 0.0
-    for k in range(5, -1, -1):
-        a0 = c[30 + k]
-        a1 = 0.0
-        a2 = 0.0
-        for l in range(4, -1, -1):
-            a2 = a2 * zv + 2.0 * a1
-            a1 = a1 * zv + a0
-            a0 = a0 * zv + c[6 * l + k]
-        # u-contraction by Horner with derivatives
-        Guu = Guu * zu + 2.0 * Gu
-        Gu = Gu * zu + G
-        G = G * zu + a0
-        Guv = Guv * zu + Gv
-        Gv = Gv * zu + a1
-        Gvv = Gvv * zu + a2
-    Gu /= hu
-    Guu /= hu * hu
-    Gv /= hv
-    Guv /= hu * hv
-    Gvv /= hv * hv
+    G, Gu, Guu, Gv, Guv, Gvv = _biquintic(CT[i * (nv - 1) + j], x - i, y - j, hu, hv)
     # the table holds f - f_0(n) (physics.electron_table.degenerate_free_energy); add f_0 back
     f0, f0u, f0uu = degenerate_point(math.exp(u) if below else n)
     G += f0
@@ -169,3 +169,77 @@ def electron_point(n, T, tab, out):
     out[10] = -Guv / T
     out[11] = (Gv - Gvv) / T
     return True
+
+
+def pair_arrays(name):
+    """The arrays :func:`pair_point` reads for a table with pairs (``True``: the main pair table, or the name
+    of a pair-onset table of physics.electron_table.ONSET_TABLES): the cell coefficients, the grid, the
+    zero-charge part (1-D quintic cells, step h0) and the ln n_plus bicubic (float32 values as doubles, as
+    the numpy reader converts them)."""
+    tab = _table(name)
+    if not tab.pairs:
+        raise ValueError(f"{name!r} is not a table with pairs")
+    return (np.ascontiguousarray(tab.CT.T), tab.u0, tab.v0, tab.hu, tab.hv, tab.nu, tab.nv,
+            np.ascontiguousarray(tab.C0), tab.h0, np.ascontiguousarray(tab.C3T.T, dtype=np.float64))
+
+
+_LN10 = math.log(10.0)
+_SHIFT_W = (_SHIFT[1] - _SHIFT[0]) * _LN10
+
+
+@njit(cache=True, error_model="numpy")
+def pair_point(n, T, tab, out):
+    """The electron-positron gas at net density n and T from a table with pairs, into out (13 floats): the
+    12 of :func:`electron_point` and n_plus. The numpy reader's formulas (physics.electron_table._evaluate):
+    the table holds h = g + c(T) n over the zero-charge pair gas F0(T); cells are clipped to the grid (the
+    caller sends only points inside the table)."""
+    CT, u0, v0, hu, hv, nu, nv, C0, h0, C3 = tab
+    u = math.log(n)
+    v = math.log(T)
+    x = (u - u0) / hu
+    y = (v - v0) / hv
+    i = min(max(int(math.floor(x)), 0), nu - 2)
+    j = min(max(int(math.floor(y)), 0), nv - 2)
+    zu = x - i
+    zv = y - j
+    cell = i * (nv - 1) + j
+    G, Gu, Guu, Gv, Guv, Gvv = _biquintic(CT[cell], zu, zv, hu, hv)
+    # the zero-charge part, a function of v alone on its finer grid (quintic, Horner with derivatives)
+    y0 = (v - v0) / h0
+    j0 = min(max(int(math.floor(y0)), 0), C0.shape[0] - 1)
+    z0 = y0 - j0
+    F0 = C0[j0, 5]
+    F0v = 0.0
+    F0vv = 0.0
+    for k in range(4, -1, -1):
+        F0vv = F0vv * z0 + 2.0 * F0v
+        F0v = F0v * z0 + F0
+        F0 = F0 * z0 + C0[j0, k]
+    F0v /= h0
+    F0vv /= h0 * h0
+    # the rest-mass shift c(T) = m_e c^2 s(x) (physics.electron_table._rest_shift)
+    xs = min(max((v - _SHIFT[0] * _LN10) / _SHIFT_W, 0.0), 1.0)
+    c0 = _MC2 * (xs ** 4 * (35.0 - 84.0 * xs + 70.0 * xs * xs - 20.0 * xs ** 3))
+    c1 = _MC2 * (140.0 * xs ** 3 * (1.0 - xs) ** 3 / _SHIFT_W)
+    c2 = _MC2 * (420.0 * xs * xs * (1.0 - xs) ** 2 * (1.0 - 2.0 * xs) / (_SHIFT_W * _SHIFT_W))
+    kT = _K * T
+    Fv = Gv - c1 * n + F0v
+    out[0] = (Gu / n - c0) / kT
+    out[1] = (Guu - Gu) / (n * kT)
+    out[2] = (Guv - Gu - (c1 - c0) * n) / (n * kT)
+    out[3] = (Gu - G) - F0
+    out[4] = Guu - Gu
+    out[5] = Guv - Gv - F0v
+    out[6] = (G - Gv) - (c0 - c1) * n + (F0 - F0v)
+    out[7] = (Gu - Guv) - (c0 - c1) * n
+    out[8] = -((Gvv - Gv) - (c2 - c1) * n + (F0vv - F0v))
+    out[9] = -Fv / T
+    out[10] = math.nan                      # (not formed: the map's state needs S alone)
+    out[11] = math.nan
+    # ln n_plus: bicubic, coefficients row 4 l + k
+    c3 = C3[cell]
+    t = 0.0
+    for k in range(3, -1, -1):
+        b = ((c3[12 + k] * zv + c3[8 + k]) * zv + c3[4 + k]) * zv + c3[k]
+        t = t * zu + b
+    out[12] = 0.0 if t < -690.0 else math.exp(t)

@@ -7,8 +7,9 @@ import pytest
 from thermoplane import physics as ph
 from thermoplane.physics import constants as const
 from thermoplane.physics import matter as M
-from thermoplane.physics.electron_fast import pair_free_state
-from thermoplane.physics.electron_table import table_state
+from thermoplane.physics.electron_fast import pair_free_state, pair_onset_state, pair_table_state
+from thermoplane.physics.electron_table import ONSET_TABLES, onset_state, table_state
+from thermoplane.physics.electrons import ElectronGas, ElectronState
 
 LR, LT = np.meshgrid(np.linspace(-12, 12, 97), np.linspace(3, 11.5, 61))
 RHO, T = (10.0**LR).ravel(), (10.0**LT).ravel()
@@ -24,6 +25,28 @@ def test_pair_free_state_matches_the_numpy_table_on_the_plane():
     # S cancels between its parts in extreme degeneracy (|S| far below n k): compare on the scale n k
     np.testing.assert_allclose(new.gas.S, old.gas.S, rtol=0, atol=1e-9 * float(np.max(n * const.k_B)))
     np.testing.assert_allclose(new.gas.S / (n * const.k_B), old.gas.S / (n * const.k_B), atol=1e-8)
+
+
+def _same_state(new, old, rtol):
+    for name in ElectronGas._fields:
+        np.testing.assert_allclose(getattr(new.gas, name), getattr(old.gas, name), rtol=rtol, atol=0, err_msg=name)
+    for name in ElectronState._fields[1:]:
+        np.testing.assert_allclose(getattr(new, name), getattr(old, name), rtol=rtol, atol=0, err_msg=name)
+
+
+def test_compiled_pair_tables_match_the_numpy_reader():
+    # the hot pair plasma (main pair table) and the pair onset (fine tables; the quadrature outside them):
+    # the same free energy and formulas, so every field to rounding (the largest differences, ~1e-10, are in
+    # the derivatives formed as differences of the interpolant's, e.g. G_uu - G_u)
+    rng = np.random.default_rng(7)
+    n = 10.0 ** rng.uniform(3.0, 37.5, 20000)          # some below and above the table: the numpy path
+    T = 10.0 ** rng.uniform(9.4, 11.6, 20000)
+    _same_state(pair_table_state(n, T), table_state(n, T, pairs=True), 1e-9)
+    lo = min(r[0] for _, r, _ in ONSET_TABLES)
+    n = 10.0 ** rng.uniform(lo, 36.0, 20000)
+    T = 10.0 ** rng.uniform(8.0, 9.7, 20000)
+    _same_state(pair_onset_state(n, T), onset_state(n, T), 1e-9)
+    assert np.any(pair_onset_state(n, T).gas.n_plus > 0)
 
 
 def test_pair_free_state_hands_points_outside_the_table_to_the_numpy_path():
