@@ -261,7 +261,8 @@ def about_physics() -> list:
           "least 1 % of the mass: where the chemical potential of the T = 0 electron gas reaches "
           "Δ_atomic + m_e c² (AME2020 masses); no Coulomb lattice shift, no thermal tail, first capture only."),
         P("Where it fails. No molecules or neutral metals (below about 10⁴ K at low density the results "
-          "are approximate); no neutronization in the equation of state (only its thresholds are drawn) and "
+          "are approximate; metal-rich mixtures such as C/O show P ≤ 0, grey, below ~2×10⁵ K from "
+          "~10⁻⁷ to ~25 g cm⁻³, their metals taken as fully ionized: use the chemical picture there); no neutronization in the equation of state (only its thresholds are drawn) and "
           "no nuclear statistical equilibrium; the "
           "Coulomb and pressure-ionization treatments are approximate near ρ ~ 1–10 g cm⁻³ at low T (inside "
           "the pressure-ionization band the thermodynamic identities hold only approximately); plain Saha "
