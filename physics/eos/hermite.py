@@ -11,7 +11,7 @@ from __future__ import annotations
 
 from numba import njit
 
-__all__ = ["quintic"]
+__all__ = ["quintic", "lookup"]
 
 
 @njit(cache=True, error_model="numpy")
@@ -36,3 +36,14 @@ def quintic(f0, g0, k0, f1, g1, k1, s, h):
            + c0 * 0.5 * (2 - 18 * s + 36 * s2 - 20 * s3) + c1 * 0.5 * (6 * s - 24 * s2 + 20 * s3)
            + d1 * (-24 * s + 84 * s2 - 60 * s3) + f1 * (60 * s - 180 * s2 + 120 * s3)) / (h * h)
     return v, dv, ddv
+
+
+@njit(cache=True, inline="always", error_model="numpy")
+def lookup(x, x0, h, tf, tg, tk):
+    """Value and first two derivatives at x of the table with nodes x0 + k h holding the value ``tf``, the first
+    ``tg`` and the second derivative ``tk`` (x0 <= x <= x0 + (n - 1) h; the caller checks the range)."""
+    t = (x - x0) / h
+    i = int(t)
+    if i > tf.size - 2:
+        i = tf.size - 2
+    return quintic(tf[i], tg[i], tk[i], tf[i + 1], tg[i + 1], tk[i + 1], t - i, h)
