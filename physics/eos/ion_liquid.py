@@ -62,7 +62,8 @@ from numba import njit
 from . import jet
 from .ion_solid import HARMONIC_CLASSICAL, MADELUNG_BCC, harmonic_loglin
 from ..coulomb import A1, A2, A3, B1, B2, B3, B4   # the liquid fit's coefficients, kept in one place
-from .coulomb_term import _LG0, _LG1, _TAB_F, _TAB_U, _TAB_V, _ocp_lookup
+from .coulomb_term import _HG, _LG0, _LG1, _TAB_F, _TAB_U, _TAB_V
+from .hermite import cell_coefficients, taylor_lookup
 from .plasma_parameters import coupling, ideal_ion, quantum
 
 __all__ = ["ocp_liquid", "ocp_scalar", "ocp_u", "jet_of_ln_gamma", "jet_of_uv", "quantum_excess", "liquid_ion",
@@ -78,6 +79,9 @@ FROZEN_CAP = 300.0
 #: ln(eta^3 / (n lambda^3)) - 1.5 ln Gamma: the classical lattice's 3 ln eta - f_id = 1.5 ln Gamma + this + 1
 _LN_ETA3_NL3 = math.log(4.0 * math.pi / 3.0) + 1.5 * math.log(3.0 / (2.0 * math.pi))
 _LN_ETA_FADE = math.log(ETA_FADE)
+#: the OCP table of physics.eos.coulomb_term (f, Gamma f', Gamma (Gamma f')' at ln Gamma nodes 0.01 apart) per
+#: cell in Taylor form (physics.eos.hermite.cell_coefficients): the same interpolant, read with fewer operations
+_OCP_CELLS = cell_coefficients(_TAB_F, _TAB_U, _TAB_V, _HG)
 #: below this eta the quantum correction is its Wigner–Kirkwood term alone
 ETA_SERIES = 1e-3
 
@@ -99,7 +103,7 @@ def ocp_scalar(g):
         # the same fit read from its quintic Hermite table in ln Gamma (physics.eos.coulomb_term: within
         # 1e-12 of the formulas, C2, its derivatives those of the interpolant): one log and a polynomial
         # instead of three square roots, asinh, atan and two log1p
-        f, u, v = _ocp_lookup(lnG, _TAB_F, _TAB_U, _TAB_V)
+        f, u, v = taylor_lookup(lnG, _LG0, _HG, _OCP_CELLS)
         return f, u / g, (v - u) / (g * g)
     rg = math.sqrt(g)
     sa = math.sqrt(g + A2)
@@ -129,7 +133,7 @@ def ocp_u(u, g):
     """f_OCP and its first two derivatives in ln Gamma at u = ln Gamma, g = Gamma: (f, f_u, f_uu) (the table
     of physics.eos.coulomb_term inside its range, the formulas of :func:`ocp_scalar` outside)."""
     if _LG0 <= u < _LG1:
-        return _ocp_lookup(u, _TAB_F, _TAB_U, _TAB_V)
+        return taylor_lookup(u, _LG0, _HG, _OCP_CELLS)
     f, f1, f2 = ocp_scalar(g)
     return f, g * f1, g * (f1 + g * f2)
 

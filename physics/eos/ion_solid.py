@@ -35,7 +35,7 @@ import numpy as np
 from numba import njit
 
 from . import jet
-from .hermite import lookup
+from .hermite import cell_coefficients, taylor_lookup
 from .plasma_parameters import coupling, ideal_ion, quantum
 
 __all__ = ["MADELUNG_BCC", "U1_BCC", "harmonic", "harmonic_scalar", "harmonic_thermal", "harmonic_loglin", "solid_ion", "solid_core", "solid_ion_free_energy"]
@@ -171,18 +171,18 @@ def _thermal_nodes(v0, h, n, classical):
 
 _TAB_LO = _thermal_nodes(_HV0, _HV_STEP, _HV_N, True)
 _TAB_HI = _thermal_nodes(0.0, _HV_STEP, _HV_N, False)
-_LO_F, _LO_G, _LO_K = _TAB_LO
-_HI_F, _HI_G, _HI_K = _TAB_HI
+_CELLS_LO = cell_coefficients(*_TAB_LO, _HV_STEP)
+_CELLS_HI = cell_coefficients(*_TAB_HI, _HV_STEP)
 
 
 @njit(cache=True, inline="always", error_model="numpy")
 def harmonic_v(v):
     """(g, g_v, g_vv) of :func:`harmonic_thermal` at v = ln eta: from the tables inside their range."""
     if _HV0 <= v < 0.0:
-        a, b, c = lookup(v, _HV0, _HV_STEP, _LO_F, _LO_G, _LO_K)
+        a, b, c = taylor_lookup(v, _HV0, _HV_STEP, _CELLS_LO)
         return a + (3.0 * v + HARMONIC_CLASSICAL), b + 3.0, c
     if 0.0 <= v < _HV1:
-        return lookup(v, 0.0, _HV_STEP, _HI_F, _HI_G, _HI_K)
+        return taylor_lookup(v, 0.0, _HV_STEP, _CELLS_HI)
     return harmonic_thermal(math.exp(v))
 
 
