@@ -31,15 +31,15 @@ from numba import njit, prange
 from .. import constants as const
 from ..thermo import Part
 from . import jet
-from .electron_xc import electron_xc_core
+from .electron_xc import electron_xc_T0, zero_T_energies
 from .parallel import serialized
 from .ion_liquid import ETA_SERIES, jet_of_ln_gamma, liquid_core, ocp_u
 from .ion_solid import harmonic_loglin, solid_core
-from .plasma_parameters import point_scales, species_constants, species_jets
-from .screening import electron_q2, screening_core
+from .plasma_parameters import _LN_GAMMA0, point_scales, species_constants, species_jets
+from .screening import _LN_AI0, screening_core
 
-_MC2 = const.m_e * const.c**2
-_PF0 = const.hbar * (3.0 * math.pi**2) ** (1.0 / 3.0) / (const.m_e * const.c)   # x = _PF0 n_e^(1/3)
+#: 4 pi e^2 a_e^2 n_e = _Q2_COEFF Gamma_1 T (a_e^2 n_e = e^(2 _LN_AI0) n_e^(1/3), Gamma_1 = e^_LN_GAMMA0 n_e^(1/3) / T)
+_Q2_COEFF = 4.0 * math.pi * const.e_esu**2 * math.exp(2.0 * _LN_AI0 - _LN_GAMMA0)
 
 __all__ = ["mixture", "mixture_chosen", "mixture_free_energy", "merge_trace_species", "dense_parts", "GAMMA_LIQUID_MAX", "GAMMA_SOLID_MIN", "mixture_plasma_temperature"]
 
@@ -65,12 +65,17 @@ def _mixture(n_e, T, Z, A, x, sc, xG, both):
     nan = math.nan
     liq = jet.const(0.0) if need_liquid else jet.const(nan)
     sol = jet.const(0.0) if need_solid else jet.const(nan)
-    # electrons: x = p_F / (m_e c), eps = sqrt(1 + x^2), E_d (screening) and the screening's q^2 / Z^(2/3)
-    xj = jet.loglin(_PF0 * math.exp(ln_n / 3.0), 1.0 / 3.0, 0.0)
-    x2 = jet.sq(xj)
-    eps = jet.sqrt(jet.addc(x2, 1.0))
-    Ed = jet.scale(jet.div(x2, eps), _MC2 / 3.0)
-    q2e = electron_q2(ln_n, T, Ed)
+    # electrons: their T = 0 energies (a table in ln n_e) and the screening's q^2 / Z^(2/3) =
+    # 4 pi e^2 a_e^2 n_e / kT_eff, kT_eff = sqrt((kT)^2 + E_d^2) (physics.eos.screening.electron_q2);
+    # a_e^2 n_e ∝ n_e^(1/3) ∝ Gamma_1 T
+    ex0, eF, ec0, Ed = zero_T_energies(ln_n)
+    kT = const.k_B * T
+    K2 = kT * kT + Ed[0] * Ed[0]
+    rK = 1.0 / math.sqrt(K2)
+    kT2 = 2.0 * kT * kT
+    K2j = (K2, 2.0 * Ed[0] * Ed[1], kT2, 2.0 * (Ed[1] * Ed[1] + Ed[0] * Ed[2]), 0.0, 2.0 * kT2)
+    q2e = jet.mul(jet.loglin(_Q2_COEFF * scales[2] * T, 1.0 / 3.0, 0.0),
+                  jet.fun(K2j, rK, -0.5 * rK / K2, 0.75 * rK / (K2 * K2)))
     # f_OCP at Gamma_e: the electrons' classical correlation, and hydrogen's (Z = 1) liquid
     ocp1 = ocp_u(scales[4], scales[2])
     for i in range(Z.size):
@@ -96,7 +101,7 @@ def _mixture(n_e, T, Z, A, x, sc, xG, both):
     else:
         margin = sol[0] - liq[0]
     ion = sol if margin < 0.0 else liq
-    xc = electron_xc_core(xj, x2, eps, jet.loglin(const.k_B * T, 0.0, 1.0), jet_of_ln_gamma(ocp1[0], ocp1[1], ocp1[2]))
+    xc = electron_xc_T0(ex0, eF, ec0, T, jet_of_ln_gamma(ocp1[0], ocp1[1], ocp1[2]))
     return liq, sol, ion, margin, xc
 
 

@@ -17,7 +17,7 @@ from __future__ import annotations
 import numpy as np
 from numba import njit
 
-__all__ = ["quintic", "lookup", "cell_coefficients", "taylor_lookup"]
+__all__ = ["quintic", "lookup", "cell_coefficients", "taylor_lookup", "taylor_cell"]
 
 
 @njit(cache=True, error_model="numpy")
@@ -84,6 +84,17 @@ def taylor_lookup(x, x0, h, cf):
         i = cf.shape[0] - 1
     s = t - i
     c0, c1, c2, c3, c4, c5 = cf[i, 0], cf[i, 1], cf[i, 2], cf[i, 3], cf[i, 4], cf[i, 5]
+    v = c0 + s * (c1 + s * (c2 + s * (c3 + s * (c4 + s * c5))))
+    dv = c1 + s * (2.0 * c2 + s * (3.0 * c3 + s * (4.0 * c4 + s * 5.0 * c5)))
+    ddv = 2.0 * c2 + s * (6.0 * c3 + s * (12.0 * c4 + s * 20.0 * c5))
+    return v, dv / h, ddv / (h * h)
+
+
+@njit(cache=True, inline="always", error_model="numpy")
+def taylor_cell(cf, i, o, s, h):
+    """As :func:`taylor_lookup` for cell i, position s in [0, 1], of a table whose rows hold several
+    functions side by side: the one whose six coefficients start at column o."""
+    c0, c1, c2, c3, c4, c5 = cf[i, o], cf[i, o + 1], cf[i, o + 2], cf[i, o + 3], cf[i, o + 4], cf[i, o + 5]
     v = c0 + s * (c1 + s * (c2 + s * (c3 + s * (c4 + s * c5))))
     dv = c1 + s * (2.0 * c2 + s * (3.0 * c3 + s * (4.0 * c4 + s * 5.0 * c5)))
     ddv = 2.0 * c2 + s * (6.0 * c3 + s * (12.0 * c4 + s * 20.0 * c5))
