@@ -79,6 +79,8 @@ FROZEN_CAP = 300.0
 #: ln(eta^3 / (n lambda^3)) - 1.5 ln Gamma: the classical lattice's 3 ln eta - f_id = 1.5 ln Gamma + this + 1
 _LN_ETA3_NL3 = math.log(4.0 * math.pi / 3.0) + 1.5 * math.log(3.0 / (2.0 * math.pi))
 _LN_ETA_FADE = math.log(ETA_FADE)
+_THIRD = 1.0 / 3.0
+_NINTH = 1.0 / 9.0
 #: the OCP table of physics.eos.coulomb_term (f, Gamma f', Gamma (Gamma f')' at ln Gamma nodes 0.01 apart) per
 #: cell in Taylor form (physics.eos.hermite.cell_coefficients): the same interpolant, read with fewer operations
 _OCP_CELLS = cell_coefficients(_TAB_F, _TAB_U, _TAB_V, _HG)
@@ -142,7 +144,7 @@ def ocp_u(u, g):
 def jet_of_ln_gamma(f, fu, fuu):
     """The jet in (ln n_e, ln T) of a function of ln Gamma (ln Gamma = ln n_e / 3 - ln T + const), given its
     value and first two derivatives in ln Gamma."""
-    return (f, fu / 3.0, -fu, fuu / 9.0, -fuu / 3.0, fuu)
+    return (f, fu * _THIRD, -fu, fuu * _NINTH, -fuu * _THIRD, fuu)
 
 
 #: the classical lattice as an excess over the ideal gas: C_M Gamma + 1.5 ln Gamma + _LATTICE_0
@@ -171,7 +173,7 @@ def _times_s(a0, a1, a2, F):
             a1 * (F[2] - F[1]) - a2 * F[0] + a0 * F[4], a2 * F[0] - 2.0 * a1 * F[2] + a0 * F[5])
 
 
-@njit(cache=True, error_model="numpy")
+@njit(cache=True, inline="always", error_model="numpy")
 def quantum_excess(g, e, u, v, ocp):
     """W Delta_frozen + (1 - W) Delta_faded (the module notes) and its partials in (u, v) = (ln Gamma, ln eta):
     (R, R_u, R_v, R_uu, R_uv, R_vv).
@@ -184,7 +186,8 @@ def quantum_excess(g, e, u, v, ocp):
     """
     d0, d1, d2 = _delta(u, g, ocp)
     # D(v) = 1 / (1 + E4), E4 = (eta / ETA_FADE)^4 ∝ e^(4 v)
-    e3 = e / ETA_FADE
+    ie = 1.0 / e
+    e3 = e * (1.0 / ETA_FADE)
     e3 *= e3
     E4 = e3 * e3
     D = 1.0 / (1.0 + E4)
@@ -198,32 +201,32 @@ def quantum_excess(g, e, u, v, ocp):
     l1 = ED
     l2 = 4.0 * ED * D
     r = math.sqrt(math.sqrt(1.0 + E4))
-    gy = g / r
+    gy = g * (D * r * r * r)                                                    # Gamma / r, 1 / r = D r^3
     y = u - l0
     a0, a1, a2 = _delta(y, gy, ocp_u(y, gy))
     A = (a0, a1, -a1 * l1, a2, -a2 * l1, a2 * l1 * l1 - a1 * l2)          # Delta(u - l(v))
     frozen = _times_v(r, r * l1, r * (l2 + l1 * l1), A)
     # the frozen liquid's T -> 0 limit taken off: tail(v) Delta(Gamma_0(s)), tail = (eta / ETA_FADE)
     # (1 + q)^(-3/4), q = (T / T_1)^4 = (ETA_FADE / (FROZEN_TAIL eta))^4 ∝ e^(-4 v)
-    t1 = ETA_FADE / (FROZEN_TAIL * e)
+    t1 = (ETA_FADE / FROZEN_TAIL) * ie
     t1 *= t1
     q = t1 * t1
-    P = 1.0 + q
-    p4 = math.sqrt(math.sqrt(P))
-    tail = (e / ETA_FADE) / (p4 * p4 * p4)
-    qP = q / P
+    iP = 1.0 / (1.0 + q)
+    tail = e * (1.0 / ETA_FADE) * iP * math.sqrt(math.sqrt(1.0 + q))            # P^(-3/4) = P^(1/4) / P
+    qP = q * iP
     tau = 1.0 + 3.0 * qP                                                        # d ln tail / dv
     tl1 = tail * tau
-    tl2 = tail * (tau * tau - 12.0 * qP / P)
+    tl2 = tail * (tau * tau - 12.0 * qP * iP)
     # Gamma_0 = ETA_FADE e^s (1 + C4)^(-1/4), C4 = (ETA_FADE e^s / FROZEN_CAP)^4 (the smooth cap)
-    g_e = g / e
+    g_e = g * ie
     g0 = ETA_FADE * g_e
-    c = g0 / FROZEN_CAP
+    c = g0 * (1.0 / FROZEN_CAP)
     c *= c
     C4 = c * c
     m = 1.0 / (1.0 + C4)                                                        # d ln Gamma_0 / ds
     lnG0 = _LN_ETA_FADE + (u - v) - 0.25 * math.log1p(C4)
-    G0 = g0 / math.sqrt(math.sqrt(1.0 + C4))
+    pc = math.sqrt(math.sqrt(1.0 + C4))
+    G0 = g0 * m * (pc * pc * pc)                                                # g0 (1 + C4)^(-1/4)
     b0, b1, b2 = _delta(lnG0, G0, ocp_u(lnG0, G0))
     bs = b1 * m
     bss = m * m * (b2 - 4.0 * C4 * b1)
@@ -250,9 +253,9 @@ def _sub6(x, y):
 def jet_of_uv(R):
     """The jet in (ln n_e, ln T) of a function of u = ln Gamma and v = ln eta (Gamma ∝ n_e^(1/3) / T,
     eta ∝ n_e^(1/2) / T), from its partials (R, R_u, R_v, R_uu, R_uv, R_vv)."""
-    return (R[0], R[1] / 3.0 + 0.5 * R[2], -(R[1] + R[2]),
-            R[3] / 9.0 + R[4] / 3.0 + 0.25 * R[5],
-            -(R[3] / 3.0 + (5.0 / 6.0) * R[4] + 0.5 * R[5]),
+    return (R[0], R[1] * _THIRD + 0.5 * R[2], -(R[1] + R[2]),
+            R[3] * _NINTH + R[4] * _THIRD + 0.25 * R[5],
+            -(R[3] * _THIRD + (5.0 / 6.0) * R[4] + 0.5 * R[5]),
             R[3] + 2.0 * R[4] + R[5])
 
 

@@ -82,7 +82,7 @@ def electron_q2(ln_n, T, Ed):
     return jet.div(num, kT_eff)
 
 
-@njit(cache=True, error_model="numpy")
+@njit(cache=True, inline="always", error_model="numpy")
 def screening_core(G, q2):
     """f_sc from the jets Gamma and q^2.
 
@@ -108,7 +108,7 @@ def screening_core(G, q2):
     ia = 1.0 / a
     iar = 1.0 / (a + r)
     # f_w = -(1/9) [a^3 - b^3 - s^3]
-    fw = -(sig * (a2 + g3 + a * b) * iab - sig * r) / 9.0
+    fw = -(sig * (a2 + g3 + a * b) * iab - sig * r) * (1.0 / 9.0)
     fw_g = -0.5 * sig * iab
     fw_s = -0.5 * g * iar                                              # -(1/6)(a - r)
     fw_gg = 0.75 * sig * iab * ia / b
