@@ -62,8 +62,8 @@ from numba import njit
 from . import jet
 from .ion_solid import HARMONIC_CLASSICAL, MADELUNG_BCC, harmonic_loglin
 from ..coulomb import A1, A2, A3, B1, B2, B3, B4   # the liquid fit's coefficients, kept in one place
-from .coulomb_term import _HG, _LG0, _LG1, _TAB_F, _TAB_U, _TAB_V
-from .hermite import cell_coefficients, taylor_lookup
+from .coulomb_term import _HG, _LG0, _LG1, _TAB_F, _TAB_U, _TAB_V, _ocp
+from .hermite import cell_coefficients, taylor_cell, taylor_lookup
 from .plasma_parameters import coupling, ideal_ion, quantum
 
 __all__ = ["ocp_liquid", "ocp_scalar", "ocp_u", "jet_of_ln_gamma", "jet_of_uv", "quantum_excess", "liquid_ion",
@@ -140,6 +140,12 @@ def ocp_u(u, g):
     return f, g * f1, g * (f1 + g * f2)
 
 
+@njit(cache=True, error_model="numpy")
+def _ocp_formula_u(g):
+    """f_OCP, f_u, f_uu (u = ln Gamma) from the fit's formulas (physics.eos.coulomb_term._ocp), no table."""
+    return _ocp(g)
+
+
 @njit(cache=True, inline="always", error_model="numpy")
 def jet_of_ln_gamma(f, fu, fuu):
     """The jet in (ln n_e, ln T) of a function of ln Gamma (ln Gamma = ln n_e / 3 - ln T + const), given its
@@ -171,6 +177,89 @@ def _times_s(a0, a1, a2, F):
     """a(s) F(u, v), s = u - v: the partials in (u, v) of the product."""
     return (a0 * F[0], a1 * F[0] + a0 * F[1], a0 * F[2] - a1 * F[0], a2 * F[0] + 2.0 * a1 * F[1] + a0 * F[3],
             a1 * (F[2] - F[1]) - a2 * F[0] + a0 * F[4], a2 * F[0] - 2.0 * a1 * F[2] + a0 * F[5])
+
+
+@njit(cache=True, inline="always", error_model="numpy")
+def _gamma0(s, g_e):
+    """Gamma_0 = ETA_FADE e^s (1 + C4)^(-1/4), C4 = (ETA_FADE e^s / FROZEN_CAP)^4 (the smooth cap), given
+    s = ln(Gamma / eta) and g_e = e^s: (C4, m = d ln Gamma_0 / ds = 1 / (1 + C4), ln Gamma_0, Gamma_0)."""
+    g0 = ETA_FADE * g_e
+    c = g0 * (1.0 / FROZEN_CAP)
+    c *= c
+    C4 = c * c
+    m = 1.0 / (1.0 + C4)
+    pc = math.sqrt(math.sqrt(1.0 + C4))
+    return C4, m, _LN_ETA_FADE + s - 0.25 * math.log1p(C4), g0 * m * (pc * pc * pc)
+
+
+@njit(cache=True, inline="always", error_model="numpy")
+def _s_rest(C4, m, lnG0, G0, ocp, g_e):
+    """Delta(Gamma_0(s)), W(s) and 1 - W(s), each with its first two derivatives in s, from :func:`_gamma0`
+    and f_OCP's (f, f_u, f_uu) at ln Gamma_0. W = 1 / (1 + W4), W4 = (Gamma_0 / GAMMA_FROZEN)^4 with the
+    uncapped Gamma_0 = ETA_FADE e^s; 1 - W = W4 W (no cancellation)."""
+    b0, b1, b2 = _delta(lnG0, G0, ocp)
+    bs = b1 * m
+    bss = m * m * (b2 - 4.0 * C4 * b1)
+    g4 = g_e * (ETA_FADE / GAMMA_FROZEN)
+    g4 *= g4
+    W4 = g4 * g4
+    w = 1.0 / (1.0 + W4)
+    ww = W4 * w
+    w1 = -4.0 * ww * w
+    w2 = 16.0 * ww * w * (2.0 * ww - 1.0)
+    return b0, bs, bss, w, w1, w2, ww, -w1, -w2
+
+
+# The functions of s of quantum_excess (Delta(Gamma_0), W, 1 - W) as quintic Hermite tables in s (per-cell
+# Taylor form, the three side by side), nodes _S_STEP apart on [_S0, _S1] (the default plane's species span
+# s ~ -3 to 15), built from the OCP formulas (physics.eos.coulomb_term._ocp); within ~1e-12 of the formulas
+# (tests/physics/test_dense_tables.py). Outside, the formulas with the OCP table.
+_S0, _S_STEP = -8.0, 0.01
+_S_N = int(round(30.0 / _S_STEP)) + 1
+_S1 = _S0 + (_S_N - 1) * _S_STEP
+
+
+@njit(cache=True, error_model="numpy")
+def s_functions_direct(s, exact):
+    """:func:`s_functions` from the formulas: f_OCP from its fit (``exact``) or from its table."""
+    g_e = math.exp(s)
+    C4, m, lnG0, G0 = _gamma0(s, g_e)
+    ocp = _ocp_formula_u(G0) if exact else ocp_u(lnG0, G0)
+    return _s_rest(C4, m, lnG0, G0, ocp, g_e)
+
+
+@njit(cache=True, error_model="numpy")
+def _s_nodes(s0, h, n):
+    out = np.empty((3, 3, n))
+    for k in range(n):
+        r = s_functions_direct(s0 + k * h, True)
+        for j in range(3):
+            out[j, 0, k] = r[3 * j]
+            out[j, 1, k] = r[3 * j + 1]
+            out[j, 2, k] = r[3 * j + 2]
+    return out
+
+
+_S_NODES = _s_nodes(_S0, _S_STEP, _S_N)
+_S_CELLS = np.ascontiguousarray(np.concatenate([cell_coefficients(*_S_NODES[j], _S_STEP) for j in range(3)], axis=1))
+
+
+@njit(cache=True, inline="always", error_model="numpy")
+def s_functions(s, g_e):
+    """(Delta(Gamma_0), d/ds, d2/ds2, W, W', W'', 1 - W, -W', -W'') at s = ln(Gamma / eta), g_e = e^s: the
+    table inside its range, else the formulas."""
+    if _S0 <= s < _S1:
+        t = (s - _S0) / _S_STEP
+        i = int(t)
+        if i > _S_CELLS.shape[0] - 1:
+            i = _S_CELLS.shape[0] - 1
+        x = t - i
+        b = taylor_cell(_S_CELLS, i, 0, x, _S_STEP)
+        w = taylor_cell(_S_CELLS, i, 6, x, _S_STEP)
+        ww = taylor_cell(_S_CELLS, i, 12, x, _S_STEP)
+        return b[0], b[1], b[2], w[0], w[1], w[2], ww[0], ww[1], ww[2]
+    C4, m, lnG0, G0 = _gamma0(s, g_e)
+    return _s_rest(C4, m, lnG0, G0, ocp_u(lnG0, G0), g_e)
 
 
 @njit(cache=True, inline="always", error_model="numpy")
@@ -217,30 +306,11 @@ def quantum_excess(g, e, u, v, ocp):
     tau = 1.0 + 3.0 * qP                                                        # d ln tail / dv
     tl1 = tail * tau
     tl2 = tail * (tau * tau - 12.0 * qP * iP)
-    # Gamma_0 = ETA_FADE e^s (1 + C4)^(-1/4), C4 = (ETA_FADE e^s / FROZEN_CAP)^4 (the smooth cap)
-    g_e = g * ie
-    g0 = ETA_FADE * g_e
-    c = g0 * (1.0 / FROZEN_CAP)
-    c *= c
-    C4 = c * c
-    m = 1.0 / (1.0 + C4)                                                        # d ln Gamma_0 / ds
-    lnG0 = _LN_ETA_FADE + (u - v) - 0.25 * math.log1p(C4)
-    pc = math.sqrt(math.sqrt(1.0 + C4))
-    G0 = g0 * m * (pc * pc * pc)                                                # g0 (1 + C4)^(-1/4)
-    b0, b1, b2 = _delta(lnG0, G0, ocp_u(lnG0, G0))
-    bs = b1 * m
-    bss = m * m * (b2 - 4.0 * C4 * b1)
+    # Delta(Gamma_0(s)) and the weight W(s), functions of s = u - v = ln(Gamma / eta) alone: a table in s
+    b0, bs, bss, w, w1, w2, ww, ww1, ww2 = s_functions(u - v, g * ie)
     frozen = _sub6(frozen, _times_v(tail, tl1, tl2, (b0, bs, -bs, bss, -bss, bss)))
-    # weight of (a), W(s) = 1 / (1 + W4), W4 = (Gamma_0 / GAMMA_FROZEN)^4 with the uncapped Gamma_0; 1 - W = W4 W
-    g4 = g_e * (ETA_FADE / GAMMA_FROZEN)
-    g4 *= g4
-    W4 = g4 * g4
-    w = 1.0 / (1.0 + W4)
-    ww = W4 * w
-    w1 = -4.0 * ww * w
-    w2 = 16.0 * ww * w * (2.0 * ww - 1.0)
     a = _times_s(w, w1, w2, frozen)
-    b = _times_s(ww, -w1, -w2, faded)
+    b = _times_s(ww, ww1, ww2, faded)
     return (a[0] + b[0], a[1] + b[1], a[2] + b[2], a[3] + b[3], a[4] + b[4], a[5] + b[5])
 
 

@@ -180,3 +180,22 @@ def test_dense_parts_equal_the_jets_and_part():
         np.testing.assert_allclose(getattr(ion, f), getattr(want_ion, f) * scale, rtol=1e-14, atol=0)
         np.testing.assert_allclose(getattr(ele, f), getattr(want_ele, f) * scale, rtol=1e-14, atol=0)
     assert np.array_equal(crystal, res["crystallized"]) and np.array_equal(margin, res["margin"])
+
+
+def test_s_table_of_the_quantum_liquid_against_the_formulas():
+    # Delta(Gamma_0(s)), W(s), 1 - W(s) with their s-derivatives, table against the OCP fit's formulas
+    s = np.concatenate([_off_nodes(liq._S0, liq._S_STEP, liq._S_N, 400), [liq._S0 + 1e-3, liq._S1 - 1e-3]])
+    for si in s:
+        got = np.array(liq.s_functions(si, math.exp(si)))
+        want = np.array(liq.s_functions_direct(si, True))
+        for j in range(3):
+            g, w = got[3 * j:3 * j + 3], want[3 * j:3 * j + 3]
+            scale = abs(w[0]) + abs(w[1]) + abs(w[2])
+            # measured: 5e-13, 1e-10 and 3e-8 of that scale for Delta(Gamma_0) (its nodes round at eps times
+            # ~270, f_OCP against the lattice at the cap Gamma_0 ~ 300, and the interpolant's second
+            # derivative carries that over h^2, as the OCP table's own does); 1e-11 and 4e-9 for W, 1 - W
+            assert abs(g[0] - w[0]) <= 2e-12 * scale
+            assert abs(g[1] - w[1]) <= 5e-10 * scale
+            assert abs(g[2] - w[2]) <= 1e-7 * scale
+    # outside the table: the formulas (with the OCP table)
+    assert liq.s_functions(25.0, math.exp(25.0)) == liq.s_functions_direct(25.0, False)
