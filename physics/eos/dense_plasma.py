@@ -36,7 +36,7 @@ from .parallel import serialized
 from .ion_liquid import ETA_SERIES, jet_of_ln_gamma, liquid_core, ocp_u
 from .ion_solid import harmonic_loglin, solid_core
 from .plasma_parameters import _LN_GAMMA0, point_scales, species_constants, species_jets
-from .screening import _LN_AI0, screening_core
+from .screening import _LN_AI0, screening_given
 
 #: 4 pi e^2 a_e^2 n_e = _Q2_COEFF Gamma_1 T (a_e^2 n_e = e^(2 _LN_AI0) n_e^(1/3), Gamma_1 = e^_LN_GAMMA0 n_e^(1/3) / T)
 _Q2_COEFF = 4.0 * math.pi * const.e_esu**2 * math.exp(2.0 * _LN_AI0 - _LN_GAMMA0)
@@ -78,11 +78,15 @@ def _mixture(n_e, T, Z, A, x, sc, xG, both):
                   jet.fun(K2j, rK, -0.5 * rK / K2, 0.75 * rK / (K2 * K2)))
     # f_OCP at Gamma_e: the electrons' classical correlation, and hydrogen's (Z = 1) liquid
     ocp1 = ocp_u(scales[4], scales[2])
+    # the screening's (3 Gamma)^(1/2), its reciprocal and 1 / Gamma for Z = 1, scaled per species
+    b1 = math.sqrt(3.0 * scales[2])
+    ib1 = 1.0 / b1
+    ig1 = 1.0 / scales[2]
     for i in range(Z.size):
         if x[i] <= 0.0:
             continue
         G, eta, f_id = species_jets(scales, sc, i)
-        sc_i = screening_core(G, jet.scale(q2e, sc[3, i]))
+        sc_i = screening_given(G, jet.scale(q2e, sc[3, i]), b1 * sc[6, i], ib1 * sc[7, i], ig1 * sc[8, i])
         quantum_ions = eta[0] >= ETA_SERIES
         v = scales[5] + sc[5, i]
         harm = harmonic_loglin(eta[0], v) if (need_solid or quantum_ions) else jet.const(0.0)

@@ -76,9 +76,10 @@ def point_scales(n_e, T):
 
 @njit(cache=True, error_model="numpy")
 def species_constants(Z, A):
-    """Per-species factors, shape (6, n): Z^(5/3), (Z / A)^(1/2), the constant of ln(n_i lambda^3) - 1,
-    Z^(2/3) (the screening's a_i^2 over a_e^2), and the logarithms of the first two."""
-    out = np.empty((6, Z.size))
+    """Per-species factors, shape (9, n): Z^(5/3), (Z / A)^(1/2), the constant of ln(n_i lambda^3) - 1,
+    Z^(2/3) (the screening's a_i^2 over a_e^2), the logarithms of the first two, Z^(5/6), Z^(-5/6) and
+    Z^(-5/3) (the screening's (3 Gamma)^(1/2), its reciprocal and 1 / Gamma from those of Z = 1)."""
+    out = np.empty((9, Z.size))
     for i in range(Z.size):
         lz = math.log(Z[i])
         out[0, i] = math.exp((5.0 / 3.0) * lz)
@@ -87,6 +88,9 @@ def species_constants(Z, A):
         out[3, i] = math.exp((2.0 / 3.0) * lz)
         out[4, i] = (5.0 / 3.0) * lz
         out[5, i] = 0.5 * (lz - math.log(A[i]))
+        out[6, i] = math.exp((5.0 / 6.0) * lz)
+        out[7, i] = 1.0 / out[6, i]
+        out[8, i] = 1.0 / out[0, i]
     return out
 
 

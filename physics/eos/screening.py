@@ -43,7 +43,7 @@ from .. import constants as const
 from . import jet
 from .plasma_parameters import coupling
 
-__all__ = ["screening_ion", "screening_core", "electron_q2", "degenerate_energy", "screening_free_energy", "GAMMA_X"]
+__all__ = ["screening_ion", "screening_core", "screening_given", "electron_q2", "degenerate_energy", "screening_free_energy", "GAMMA_X"]
 
 #: Gamma at which the Debye–Hückel-like small-q slope and the ion-sphere slope (18/175) Gamma meet.
 GAMMA_X = (175.0 * math.sqrt(3.0) / (6.0 * 18.0)) ** 2
@@ -84,7 +84,15 @@ def electron_q2(ln_n, T, Ed):
 
 @njit(cache=True, inline="always", error_model="numpy")
 def screening_core(G, q2):
-    """f_sc from the jets Gamma and q^2.
+    """f_sc from the jets Gamma and q^2 (:func:`screening_given`, its square root and reciprocals formed here)."""
+    b = math.sqrt(3.0 * G[0])
+    return screening_given(G, q2, b, 1.0 / b, 1.0 / G[0])
+
+
+@njit(cache=True, inline="always", error_model="numpy")
+def screening_given(G, q2, b, ib, ig):
+    """f_sc from the jets Gamma and q^2, given b = (3 Gamma)^(1/2), 1 / b and 1 / Gamma (the dense-plasma mixture
+    forms them once per point and scales them per species).
 
     f_sc is a function of two numbers, Gamma and s^2 = q^2 / (1 + q^2): its partials in (Gamma, s^2) are
     formed by hand and carried to (ln n_e, ln T) by one chain rule on the two jets (no division of jets).
@@ -102,18 +110,24 @@ def screening_core(G, q2):
     g3 = 3.0 * g
     a2 = g3 + sig
     a = math.sqrt(a2)
-    b = math.sqrt(g3)
     r = math.sqrt(sig)
-    iab = 1.0 / (a + b)
-    ia = 1.0 / a
-    iar = 1.0 / (a + r)
+    # 1 / a, 1 / r, 1 / (a + b), 1 / (a + r) from one division
+    pb = a + b
+    pr = a + r
+    ar = a * r
+    pbr = pb * pr
+    inv = 1.0 / (ar * pbr)
+    ia = r * pbr * inv
+    ir = a * pbr * inv
+    iab = ar * pr * inv
+    iar = ar * pb * inv
     # f_w = -(1/9) [a^3 - b^3 - s^3]
     fw = -(sig * (a2 + g3 + a * b) * iab - sig * r) * (1.0 / 9.0)
     fw_g = -0.5 * sig * iab
     fw_s = -0.5 * g * iar                                              # -(1/6)(a - r)
-    fw_gg = 0.75 * sig * iab * ia / b
+    fw_gg = 0.75 * sig * iab * ia * ib
     fw_gs = -0.25 * ia
-    fw_ss = 0.25 * g * iar * ia / r                                    # (1/12)(1/r - 1/a)
+    fw_ss = 0.25 * g * iar * ia * ir                                   # (1/12)(1/r - 1/a)
     # f_s = -(18/175) Gamma s^2
     k = 18.0 / 175.0
     fs = -k * g * sig
@@ -124,7 +138,6 @@ def screening_core(G, q2):
     y *= y
     Y0 = 1.0 / (1.0 + y)
     Y1 = y * Y0
-    ig = 1.0 / g
     w1 = 4.0 * Y1 * Y0 * ig
     w2 = w1 * ig * (3.0 - 8.0 * Y1)
     d = fs - fw
