@@ -19,6 +19,11 @@ coupling sum_i x_i Gamma_i exceeds GAMMA_LIQUID_MAX = 1000 (the solid is lower t
 Likewise the lattice is no candidate below GAMMA_SOLID_MIN = 100: there the harmonic crystal's entropy and
 the anharmonic series (an expansion in 1/Gamma) lose their meaning and would undercut the liquid at weak
 coupling (the liquid is lower by 0.3 kT per ion or more at Gamma = 100, so no jump is introduced).
+
+Speed (tests/benchmarks/bench_eos.py, 'dense-plasma terms'): functions of one variable are read from quintic
+Hermite tables whose derivatives are those of the interpolant (f_OCP, f_harm, the liquid's functions of
+ln(Gamma / eta), the electrons' T = 0 energies; see each module), the rest is formed on scalar partials with
+one chain rule, and :func:`dense_parts` writes the parts per gram in the same compiled pass.
 """
 
 from __future__ import annotations
@@ -53,9 +58,9 @@ _BLOCK = 256
 def _mixture(n_e, T, Z, A, x, sc, xG, both):
     """One point. ``sc`` = species_constants(Z, A), ``xG`` = sum_i x_i Z_i^(5/3).
 
-    What depends on the electrons alone (ln n_e, ln T, Gamma and eta of Z = A = 1, p_F, the screening's
-    k_e, the exchange-correlation) is formed once and scaled per species; f_harm(eta) is shared by the
-    liquid and the solid of a species.
+    What depends on the electrons alone (ln n_e, ln T, Gamma and eta of Z = A = 1 and their logarithms, the
+    electrons' T = 0 energies from their table in ln n_e, the screening's q^2, the exchange-correlation) is
+    formed once and scaled per species; f_harm(eta) is shared by the liquid and the solid of a species.
     """
     scales = point_scales(n_e, T)
     ln_n = scales[0]

@@ -29,6 +29,11 @@ It is not one of the published finite-temperature exchange-correlation fits (Ich
 1987; Karasiev et al. 2014), whose coefficients we could not check. Relativistic corrections to
 correlation and to the non-degenerate exchange (kT > m_e c^2) are left out: there exchange is a tiny
 fraction of the electron free energy.
+
+Speed: e_x0, epsilon_F and e_c0 (and the screening's E_d) depend on n_e alone; the kernels read them from one
+quintic Hermite table in ln n_e (:func:`zero_T_energies`, n_e = 1e10 to 1e40 cm^-3, the formulas outside)
+and form f_xc from them with T (:func:`electron_xc_T0`); :func:`electron_xc_direct` is the formula without
+the table.
 """
 
 from __future__ import annotations

@@ -50,6 +50,13 @@ Free energy per ion over kT, as an excess over the classical ideal ion gas:
   2e10 g/cm^3), where ion exchange, not modelled, matters too. Our construction, not a published fit:
   Potekhin & Chabrier (2010) give no form for the quantum liquid's heat capacity beyond the
   Wigner–Kirkwood order that we could check.
+
+Speed: the kernels take u = ln Gamma and v = ln eta as given numbers. f_OCP is read from the quintic Hermite
+table of physics.eos.coulomb_term (stored per cell in Taylor form, physics.eos.hermite), Delta(Gamma_0) and
+W of s = u - v (a function of density alone) from a table in s; the sum above is formed on its partials in
+(u, v) and carried to (ln n_e, ln T) once (:func:`quantum_excess`, :func:`jet_of_uv`). Every table holds a
+value and its first two derivatives at its nodes, and the interpolant's own derivatives are used, so the
+identities hold to rounding; tests/physics/test_dense_tables.py measures each against the formulas.
 """
 
 from __future__ import annotations

@@ -25,6 +25,9 @@ Sackur–Tetrode term of physics.matter and adds this):
   fade the classical anharmonic term where zero-point motion dominates; we multiply it by exp(-eta^2)
   (our choice of damping; their quantum anharmonic fit is not reproduced here). The factor keeps the third
   law and the T^3 heat capacity of the harmonic quantum crystal.
+
+Speed: the kernels read f_harm - (3/2) u_1 eta from a quintic Hermite table in ln eta (:func:`harmonic_v`;
+the zero-point term is added as a power law, so its c_V vanishes exactly); the fit itself outside the table.
 """
 
 from __future__ import annotations
