@@ -19,6 +19,11 @@ coupling sum_i x_i Gamma_i exceeds GAMMA_LIQUID_MAX = 1000 (the solid is lower t
 Likewise the lattice is no candidate below GAMMA_SOLID_MIN = 100: there the harmonic crystal's entropy and
 the anharmonic series (an expansion in 1/Gamma) lose their meaning and would undercut the liquid at weak
 coupling (the liquid is lower by 0.3 kT per ion or more at Gamma = 100, so no jump is introduced).
+
+Speed (tests/benchmarks/bench_eos.py, 'dense-plasma terms'): functions of one variable are read from quintic
+Hermite tables whose derivatives are those of the interpolant (f_OCP, f_harm, the liquid's functions of
+ln(Gamma / eta), the electrons' T = 0 energies; see each module), the rest is formed on scalar partials with
+one chain rule, and :func:`dense_parts` writes the parts per gram in the same compiled pass.
 """
 
 from __future__ import annotations
@@ -31,15 +36,15 @@ from numba import njit, prange
 from .. import constants as const
 from ..thermo import Part
 from . import jet
-from .electron_xc import electron_xc_core
+from .electron_xc import electron_xc_T0, zero_T_energies
 from .parallel import serialized
-from .ion_liquid import ETA_SERIES, liquid_core, ocp_liquid
-from .ion_solid import harmonic, solid_core
-from .plasma_parameters import point_scales, species_constants, species_jets
-from .screening import electron_q2, screening_core
+from .ion_liquid import ETA_SERIES, jet_of_ln_gamma, liquid_core, ocp_u
+from .ion_solid import harmonic_loglin, solid_core
+from .plasma_parameters import _LN_GAMMA0, point_scales, species_constants, species_jets
+from .screening import _LN_AI0, screening_given
 
-_MC2 = const.m_e * const.c**2
-_PF0 = const.hbar * (3.0 * math.pi**2) ** (1.0 / 3.0) / (const.m_e * const.c)   # x = _PF0 n_e^(1/3)
+#: 4 pi e^2 a_e^2 n_e = _Q2_COEFF Gamma_1 T (a_e^2 n_e = e^(2 _LN_AI0) n_e^(1/3), Gamma_1 = e^_LN_GAMMA0 n_e^(1/3) / T)
+_Q2_COEFF = 4.0 * math.pi * const.e_esu**2 * math.exp(2.0 * _LN_AI0 - _LN_GAMMA0)
 
 __all__ = ["mixture", "mixture_chosen", "mixture_free_energy", "merge_trace_species", "dense_parts", "GAMMA_LIQUID_MAX", "GAMMA_SOLID_MIN", "mixture_plasma_temperature"]
 
@@ -53,9 +58,9 @@ _BLOCK = 256
 def _mixture(n_e, T, Z, A, x, sc, xG, both):
     """One point. ``sc`` = species_constants(Z, A), ``xG`` = sum_i x_i Z_i^(5/3).
 
-    What depends on the electrons alone (ln n_e, ln T, Gamma and eta of Z = A = 1, p_F, the screening's
-    k_e, the exchange-correlation) is formed once and scaled per species; f_harm(eta) is shared by the
-    liquid and the solid of a species.
+    What depends on the electrons alone (ln n_e, ln T, Gamma and eta of Z = A = 1 and their logarithms, the
+    electrons' T = 0 energies from their table in ln n_e, the screening's q^2, the exchange-correlation) is
+    formed once and scaled per species; f_harm(eta) is shared by the liquid and the solid of a species.
     """
     scales = point_scales(n_e, T)
     ln_n = scales[0]
@@ -65,25 +70,35 @@ def _mixture(n_e, T, Z, A, x, sc, xG, both):
     nan = math.nan
     liq = jet.const(0.0) if need_liquid else jet.const(nan)
     sol = jet.const(0.0) if need_solid else jet.const(nan)
-    # electrons: x = p_F / (m_e c), eps = sqrt(1 + x^2), E_d (screening) and the screening's q^2 / Z^(2/3)
-    xj = jet.loglin(_PF0 * math.exp(ln_n / 3.0), 1.0 / 3.0, 0.0)
-    x2 = jet.sq(xj)
-    eps = jet.sqrt(jet.addc(x2, 1.0))
-    Ed = jet.scale(jet.div(x2, eps), _MC2 / 3.0)
-    q2e = electron_q2(ln_n, T, Ed)
+    # electrons: their T = 0 energies (a table in ln n_e) and the screening's q^2 / Z^(2/3) =
+    # 4 pi e^2 a_e^2 n_e / kT_eff, kT_eff = sqrt((kT)^2 + E_d^2) (physics.eos.screening.electron_q2);
+    # a_e^2 n_e ∝ n_e^(1/3) ∝ Gamma_1 T
+    ex0, eF, ec0, Ed = zero_T_energies(ln_n)
+    kT = const.k_B * T
+    K2 = kT * kT + Ed[0] * Ed[0]
+    rK = 1.0 / math.sqrt(K2)
+    kT2 = 2.0 * kT * kT
+    K2j = (K2, 2.0 * Ed[0] * Ed[1], kT2, 2.0 * (Ed[1] * Ed[1] + Ed[0] * Ed[2]), 0.0, 2.0 * kT2)
+    q2e = jet.mul(jet.loglin(_Q2_COEFF * scales[2] * T, 1.0 / 3.0, 0.0),
+                  jet.fun(K2j, rK, -0.5 * rK / K2, 0.75 * rK / (K2 * K2)))
     # f_OCP at Gamma_e: the electrons' classical correlation, and hydrogen's (Z = 1) liquid
-    G1 = jet.loglin(scales[2], 1.0 / 3.0, -1.0)
-    ocp1 = ocp_liquid(G1)
+    ocp1 = ocp_u(scales[4], scales[2])
+    # the screening's (3 Gamma)^(1/2), its reciprocal and 1 / Gamma for Z = 1, scaled per species
+    b1 = math.sqrt(3.0 * scales[2])
+    ib1 = 1.0 / b1
+    ig1 = 1.0 / scales[2]
     for i in range(Z.size):
         if x[i] <= 0.0:
             continue
         G, eta, f_id = species_jets(scales, sc, i)
-        sc_i = screening_core(G, jet.scale(q2e, sc[3, i]))
+        sc_i = screening_given(G, jet.scale(q2e, sc[3, i]), b1 * sc[6, i], ib1 * sc[7, i], ig1 * sc[8, i])
         quantum_ions = eta[0] >= ETA_SERIES
-        harm = harmonic(eta) if (need_solid or quantum_ions) else jet.const(0.0)
+        v = scales[5] + sc[5, i]
+        harm = harmonic_loglin(eta[0], v) if (need_solid or quantum_ions) else jet.const(0.0)
         if need_liquid:
-            ocp = ocp1 if sc[0, i] == 1.0 else ocp_liquid(G)
-            liq = jet.add(liq, jet.scale(jet.add(liquid_core(G, eta, f_id, harm, ocp), sc_i), x[i]))
+            u = scales[4] + sc[4, i]
+            ocp = ocp1 if sc[0, i] == 1.0 else ocp_u(u, G[0])
+            liq = jet.add(liq, jet.scale(jet.add(liquid_core(G, eta, u, v, f_id, harm, ocp), sc_i), x[i]))
         if need_solid:
             sol = jet.add(sol, jet.scale(jet.add(solid_core(G, eta, f_id, harm), sc_i), x[i]))
     # the margin f_solid - f_liquid, kept away from zero where a phase is no candidate, so that its sign is
@@ -95,7 +110,7 @@ def _mixture(n_e, T, Z, A, x, sc, xG, both):
     else:
         margin = sol[0] - liq[0]
     ion = sol if margin < 0.0 else liq
-    xc = electron_xc_core(xj, x2, eps, jet.loglin(const.k_B * T, 0.0, 1.0), ocp1)
+    xc = electron_xc_T0(ex0, eF, ec0, T, jet_of_ln_gamma(ocp1[0], ocp1[1], ocp1[2]))
     return liq, sol, ion, margin, xc
 
 
@@ -219,6 +234,45 @@ def merge_trace_species(Z, A, x, threshold=TRACE_FRACTION):
     return (np.append(Z[~trace], Zm), np.append(A[~trace], Am), np.append(x[~trace], xm), float(offset))
 
 
+@njit(cache=True, inline="always", error_model="numpy")
+def _part_into(out, i, N, rho, T, g, offset, s):
+    """Row i of ``out`` (9, n): P, E, S and their partials per gram from g = F / (N k T) per particle, times
+    s (as :func:`_part`, the same products in the same order; ``offset`` is added to f, so to S only)."""
+    k = const.k_B
+    f, fn, fT, fnn, fnT, fTT = g
+    f = f + offset
+    out[0, i] = rho * N * k * T * fn * s
+    out[1, i] = -N * k * T * fT * s
+    out[2, i] = -N * k * (f + fT) * s
+    out[3, i] = N * k * T * (fn + fnn) * s
+    out[4, i] = rho * N * k * (fn + fnT) * s
+    out[5, i] = -N * k * T * fnT / rho * s
+    out[6, i] = -N * k * (fT + fTT) * s
+    out[7, i] = -N * k * (fn + fnT) / rho * s
+    out[8, i] = -N * k * (fT + fTT) / T * s
+
+
+@njit(cache=True, parallel=True, error_model="numpy")
+def _many_parts(rho, T, N_ion, N_e, Z, A, x, offset, scale, ion, ele, flag):
+    """:func:`_many` (the chosen phase only) writing the ion and electron parts per gram directly (no
+    (6, n) jets and no numpy passes over them): rows of ``ion`` and ``ele`` are the fields of :class:`Part`.
+    ``scale`` has one value per point, or one value for all."""
+    sc, xG = _constants(Z, A, x)
+    n = rho.size
+    one = scale.size == 1
+    for k in prange(_TASKS):
+        for start in range(k * _BLOCK, n, _TASKS * _BLOCK):
+            for i in range(start, min(start + _BLOCK, n)):
+                r = rho[i]
+                t = T[i]
+                a, b, c, d, e = _mixture(r * N_e, t, Z, A, x, sc, xG, False)
+                s = scale[0] if one else scale[i]
+                _part_into(ion, i, N_ion, r, t, c, offset, s)
+                _part_into(ele, i, N_e, r, t, e, 0.0, s)
+                flag[i] = d
+
+
+@serialized
 def dense_parts(rho, T, X, A, Z, scale=1.0):
     """The dense-plasma terms of fully ionized matter as two :class:`Part` s (ions, electrons) per gram.
 
@@ -228,20 +282,29 @@ def dense_parts(rho, T, X, A, Z, scale=1.0):
     square of the ionized fraction where matter is not fully ionized).
 
     Returns (ion_part, electron_part, crystallized, margin): margin = f_solid - f_liquid per ion over kT.
+    One compiled pass (:func:`_many_parts`): the same numbers as :func:`mixture_free_energy` followed by
+    :func:`_part`, to rounding.
     """
     per_mass = np.asarray(X, float) / (np.asarray(A, float) * const.m_u)
     Z = np.asarray(Z, float)
     keep = (per_mass > 0) & (Z > 0)
     N_ion = float(np.sum(per_mass[keep]))
     N_e = float(np.sum(per_mass[keep] * Z[keep]))
-    n_e = rho * N_e
     Zs, As, xs, offset = merge_trace_species(Z[keep], np.asarray(A, float)[keep], per_mass[keep] / N_ion)
-    res = mixture_free_energy(n_e, T, Zs, As, xs, both=False)
-    g_ion = res["ion"].copy()
-    g_ion[0] += offset
-    ion = _part(N_ion, rho, T, g_ion)
-    ele = _part(N_e, rho, T, res["electron"])
-    if not np.all(np.asarray(scale) == 1.0):
-        ion = Part(*(getattr(ion, f) * scale for f in Part.__dataclass_fields__))
-        ele = Part(*(getattr(ele, f) * scale for f in Part.__dataclass_fields__))
-    return ion, ele, res["crystallized"], res["margin"]
+    xs = xs / xs.sum()
+    rho, T = np.broadcast_arrays(np.asarray(rho, float), np.asarray(T, float))
+    shape = rho.shape
+    sc_arr = np.asarray(scale, float)
+    if sc_arr.size == 1:
+        sc_arr = sc_arr.reshape(1)
+    else:
+        sc_arr = np.ascontiguousarray(np.broadcast_to(sc_arr, shape)).ravel()
+    n = rho.size
+    ion, ele = np.empty((9, n)), np.empty((9, n))
+    flag = np.empty(n)
+    _many_parts(np.ascontiguousarray(rho).ravel(), np.ascontiguousarray(T).ravel(), N_ion, N_e, Zs, As, xs,
+                float(offset), sc_arr, ion, ele, flag)
+    ion_p = Part(*(row.reshape(shape) for row in ion))
+    ele_p = Part(*(row.reshape(shape) for row in ele))
+    margin = flag.reshape(shape)
+    return ion_p, ele_p, margin < 0.0, margin

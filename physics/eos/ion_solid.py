@@ -25,6 +25,9 @@ Sackur–Tetrode term of physics.matter and adds this):
   fade the classical anharmonic term where zero-point motion dominates; we multiply it by exp(-eta^2)
   (our choice of damping; their quantum anharmonic fit is not reproduced here). The factor keeps the third
   law and the T^3 heat capacity of the harmonic quantum crystal.
+
+Speed: the kernels read f_harm - (3/2) u_1 eta from a quintic Hermite table in ln eta (:func:`harmonic_v`;
+the zero-point term is added as a power law, so its c_V vanishes exactly); the fit itself outside the table.
 """
 
 from __future__ import annotations
@@ -35,9 +38,10 @@ import numpy as np
 from numba import njit
 
 from . import jet
+from .hermite import cell_coefficients, taylor_lookup
 from .plasma_parameters import coupling, ideal_ion, quantum
 
-__all__ = ["MADELUNG_BCC", "U1_BCC", "harmonic", "harmonic_scalar", "solid_ion", "solid_core", "solid_ion_free_energy"]
+__all__ = ["MADELUNG_BCC", "U1_BCC", "harmonic", "harmonic_scalar", "harmonic_thermal", "harmonic_loglin", "solid_ion", "solid_core", "solid_ion_free_energy"]
 
 #: Madelung constant of the bcc Coulomb lattice (Baiko, Potekhin & Yakovlev 2001; from memory).
 MADELUNG_BCC = -0.895929255682
@@ -104,10 +108,104 @@ def harmonic_scalar(e):
 
 
 @njit(cache=True, error_model="numpy")
+def harmonic_thermal(e, classical=False):
+    """g = f_harm - (3/2) u_1 eta (the fit without its zero-point term) and its first two derivatives in
+    v = ln eta at eta = e: (g, g_v, g_vv), each without the cancellation against the zero-point term that
+    subtracting it afterwards would bring (their size falls as eta^-3 for eta >> 1).
+
+    ``classical``: return g - (3 ln eta + HARMONIC_CLASSICAL) instead (its classical limit taken off, -> 0 as
+    eta -> 0), formed as sum_k ln(-expm1(-alpha_k eta) / (alpha_k eta)) - (A / B - 1 / b_0), so that its
+    rounding is that of a small number.
+    """
+    g = 0.0
+    g1 = 0.0
+    g2 = 0.0
+    for k in range(3):
+        a = _ALPHA[k]
+        y = -a * e
+        ey = math.exp(y)
+        m = math.expm1(y) if y > -0.7 else ey - 1.0
+        r = ey / m
+        g += math.log(m / y) if classical else math.log(-m)
+        g1 -= a * r
+        g2 -= a * a * r / m
+    A0, A1, A2 = _horner2(_A, 8, e)
+    B0, B1, B2 = _horner2(_B, 7, e)
+    e2 = e * e
+    e7 = e2 * e2 * e2 * e
+    c6 = _ALPHA6 * _A[6]
+    c8 = _ALPHA8 * _A[8]
+    B0 += (c6 + c8 * e2) * e7 * e2
+    B1 += (9.0 * c6 + 11.0 * c8 * e2) * e7 * e
+    B2 += (72.0 * c6 + 110.0 * c8 * e2) * e7
+    q = A0 / B0
+    q1 = (A1 - q * B1) / B0
+    q2 = (A2 - 2.0 * q1 * B1 - q * B2) / B0
+    g1 -= q1
+    g2 -= q2
+    if classical:
+        # A / B - 1 / b_0 = (A b_0 - B) / (B b_0), the constant terms cancelling exactly (a_0 = 1)
+        q = (A0 * _B[0] - B0) / (B0 * _B[0])
+        return g - q, e * g1 - 3.0, e * g1 + e * e * g2
+    return g - q, e * g1, e * g1 + e * e * g2
+
+
+# g = f_harm - (3/2) u_1 eta as quintic Hermite tables in v = ln eta (physics.eos.hermite): nodes _HV_STEP
+# apart, holding the value and its first two derivatives in v from harmonic_thermal; for v < 0 the table holds
+# g - (3 v + HARMONIC_CLASSICAL) (the classical limit, added back exactly), formed without cancellation, so
+# that the nodes' rounding is that of a small number: the interpolant's second derivative carries it as
+# ~60 eps |g| / h^2.
+# Within ~1e-11 of the fit in g_vv, far less in g (tests/physics/test_dense_tables.py); C2 (also across
+# v = 0, a node of both), its derivatives those of the interpolant. Outside [_HV0, _HV1] the fit itself.
+_HV0, _HV1, _HV_STEP = -12.0, 12.0, 0.01
+_HV_N = int(round(-_HV0 / _HV_STEP)) + 1          # nodes per half, v = 0 in both
+
+
+@njit(cache=True, error_model="numpy")
+def _thermal_nodes(v0, h, n, classical):
+    tf = np.empty(n)
+    tg = np.empty(n)
+    tk = np.empty(n)
+    for k in range(n):
+        v = v0 + k * h
+        tf[k], tg[k], tk[k] = harmonic_thermal(math.exp(v), classical)
+    return tf, tg, tk
+
+
+_TAB_LO = _thermal_nodes(_HV0, _HV_STEP, _HV_N, True)
+_TAB_HI = _thermal_nodes(0.0, _HV_STEP, _HV_N, False)
+_CELLS_LO = cell_coefficients(*_TAB_LO, _HV_STEP)
+_CELLS_HI = cell_coefficients(*_TAB_HI, _HV_STEP)
+
+
+@njit(cache=True, inline="always", error_model="numpy")
+def harmonic_v(v):
+    """(g, g_v, g_vv) of :func:`harmonic_thermal` at v = ln eta: from the tables inside their range."""
+    if _HV0 <= v < 0.0:
+        a, b, c = taylor_lookup(v, _HV0, _HV_STEP, _CELLS_LO)
+        return a + (3.0 * v + HARMONIC_CLASSICAL), b + 3.0, c
+    if 0.0 <= v < _HV1:
+        return taylor_lookup(v, 0.0, _HV_STEP, _CELLS_HI)
+    return harmonic_thermal(math.exp(v))
+
+
+@njit(cache=True, error_model="numpy")
 def harmonic(eta):
-    """f_harm(eta) of the bcc harmonic lattice (BPY 2001 fit), eta given as a jet."""
-    h, h1, h2 = harmonic_scalar(eta[0])
-    return jet.fun(eta, h, h1, h2)
+    """f_harm(eta) of the bcc harmonic lattice (BPY 2001 fit), eta given as a jet (the zero-point term
+    analytic, the rest from the table of :func:`harmonic_v`)."""
+    e = eta[0]
+    g, gv, gvv = harmonic_v(math.log(e))
+    z = 1.5 * U1_BCC
+    return jet.fun(eta, z * e + g, z + gv / e, (gvv - gv) / (e * e))
+
+
+@njit(cache=True, inline="always", error_model="numpy")
+def harmonic_loglin(e, v):
+    """:func:`harmonic` for eta ∝ n_e^(1/2) / T given by its value e and v = ln e: the zero-point term is
+    a power law (its c_V, -(f_T + f_TT), vanishes exactly), the rest a function of v."""
+    g, gv, gvv = harmonic_v(v)
+    a = 1.5 * U1_BCC * e
+    return (a + g, 0.5 * (a + gv), -(a + gv), 0.25 * (a + gvv), -0.5 * (a + gvv), a + gvv)
 
 
 @njit(cache=True, error_model="numpy")
@@ -159,7 +257,7 @@ def solid_ion(n_e, T, Z, A):
     Returns the jet (f, f_n, f_T, f_nn, f_nT, f_TT), derivatives in ln n_e and ln T.
     """
     eta = quantum(n_e, T, Z, A)
-    return solid_core(coupling(n_e, T, Z), eta, ideal_ion(n_e, T, Z, A), harmonic(eta))
+    return solid_core(coupling(n_e, T, Z), eta, ideal_ion(n_e, T, Z, A), harmonic_loglin(eta[0], math.log(eta[0])))
 
 
 @njit(cache=True, error_model="numpy")

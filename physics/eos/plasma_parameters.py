@@ -65,23 +65,32 @@ def ideal_ion(n_e, T, Z, A):
 
 @njit(cache=True, error_model="numpy")
 def point_scales(n_e, T):
-    """(ln n_e, ln T, Gamma_1, eta_1) at one point: Gamma and eta = T_p / T of a species with Z = A = 1."""
+    """(ln n_e, ln T, Gamma_1, eta_1, ln Gamma_1, ln eta_1) at one point: Gamma and eta = T_p / T of a species
+    with Z = A = 1, and their logarithms."""
     ln_n = math.log(n_e)
     ln_T = math.log(T)
-    return (ln_n, ln_T, math.exp(_LN_GAMMA0 + ln_n / 3.0 - ln_T), math.exp(_LN_ETA0 + 0.5 * ln_n - ln_T))
+    lg = _LN_GAMMA0 + ln_n / 3.0 - ln_T
+    le = _LN_ETA0 + 0.5 * ln_n - ln_T
+    return (ln_n, ln_T, math.exp(lg), math.exp(le), lg, le)
 
 
 @njit(cache=True, error_model="numpy")
 def species_constants(Z, A):
-    """Per-species factors, shape (4, n): Z^(5/3), (Z / A)^(1/2), the constant of ln(n_i lambda^3) - 1 and
-    Z^(2/3) (the screening's a_i^2 over a_e^2)."""
-    out = np.empty((4, Z.size))
+    """Per-species factors, shape (9, n): Z^(5/3), (Z / A)^(1/2), the constant of ln(n_i lambda^3) - 1,
+    Z^(2/3) (the screening's a_i^2 over a_e^2), the logarithms of the first two, Z^(5/6), Z^(-5/6) and
+    Z^(-5/3) (the screening's (3 Gamma)^(1/2), its reciprocal and 1 / Gamma from those of Z = 1)."""
+    out = np.empty((9, Z.size))
     for i in range(Z.size):
         lz = math.log(Z[i])
         out[0, i] = math.exp((5.0 / 3.0) * lz)
         out[1, i] = math.exp(0.5 * (lz - math.log(A[i])))
         out[2, i] = -lz + _LN_LAM3_0 - 1.5 * math.log(A[i]) - 1.0
         out[3, i] = math.exp((2.0 / 3.0) * lz)
+        out[4, i] = (5.0 / 3.0) * lz
+        out[5, i] = 0.5 * (lz - math.log(A[i]))
+        out[6, i] = math.exp((5.0 / 6.0) * lz)
+        out[7, i] = 1.0 / out[6, i]
+        out[8, i] = 1.0 / out[0, i]
     return out
 
 
@@ -89,6 +98,6 @@ def species_constants(Z, A):
 def species_jets(scales, sc, i):
     """(Gamma, eta, f_id) of species i as jets, from :func:`point_scales` and :func:`species_constants`;
     equal to :func:`coupling`, :func:`quantum` and :func:`ideal_ion` to rounding."""
-    ln_n, ln_T, g1, e1 = scales
+    ln_n, ln_T, g1, e1 = scales[0], scales[1], scales[2], scales[3]
     return (jet.loglin(g1 * sc[0, i], 1.0 / 3.0, -1.0), jet.loglin(e1 * sc[1, i], 0.5, -1.0),
             jet.lin(ln_n - 1.5 * ln_T + sc[2, i], 1.0, -1.5))

@@ -43,7 +43,7 @@ from .. import constants as const
 from . import jet
 from .plasma_parameters import coupling
 
-__all__ = ["screening_ion", "screening_core", "electron_q2", "degenerate_energy", "screening_free_energy", "GAMMA_X"]
+__all__ = ["screening_ion", "screening_core", "screening_given", "electron_q2", "degenerate_energy", "screening_free_energy", "GAMMA_X"]
 
 #: Gamma at which the Debye–Hückel-like small-q slope and the ion-sphere slope (18/175) Gamma meet.
 GAMMA_X = (175.0 * math.sqrt(3.0) / (6.0 * 18.0)) ** 2
@@ -82,25 +82,78 @@ def electron_q2(ln_n, T, Ed):
     return jet.div(num, kT_eff)
 
 
-@njit(cache=True, error_model="numpy")
+@njit(cache=True, inline="always", error_model="numpy")
 def screening_core(G, q2):
-    """f_sc from the jets Gamma and q^2.
+    """f_sc from the jets Gamma and q^2 (:func:`screening_given`, its square root and reciprocals formed here)."""
+    b = math.sqrt(3.0 * G[0])
+    return screening_given(G, q2, b, 1.0 / b, 1.0 / G[0])
 
-    (3 Gamma + s^2)^(3/2) - (3 Gamma)^(3/2) is formed as s^2 (a^2 + a b + b^2) / (a + b),
-    a = (3 Gamma + s^2)^(1/2), b = (3 Gamma)^(1/2): no cancellation where s^2 << 3 Gamma.
+
+@njit(cache=True, inline="always", error_model="numpy")
+def screening_given(G, q2, b, ib, ig):
+    """f_sc from the jets Gamma and q^2, given b = (3 Gamma)^(1/2), 1 / b and 1 / Gamma (the dense-plasma mixture
+    forms them once per point and scales them per species).
+
+    f_sc is a function of two numbers, Gamma and s^2 = q^2 / (1 + q^2): its partials in (Gamma, s^2) are
+    formed by hand and carried to (ln n_e, ln T) by one chain rule on the two jets (no division of jets).
+    Every difference that would cancel where s^2 << 3 Gamma is written without it (a = (3 Gamma + s^2)^(1/2),
+    b = (3 Gamma)^(1/2), r = s):
+      a^3 - b^3 = s^2 (a^2 + a b + b^2) / (a + b),  d/dGamma = (9/2) s^2 / (a + b),
+      d2/dGamma2 = -(27/4) s^2 / (a b (a + b)),  d/ds^2 = (3/2) a,  d2/dGamma ds^2 = (9/4) / a,
+      d2/d(s^2)^2 = (3/4) / a;  and for f_w's s^2 partials, a - r = 3 Gamma / (a + r).
     """
-    s2 = jet.div(q2, jet.addc(q2, 1.0))
-    G3 = jet.scale(G, 3.0)
-    a2 = jet.add(G3, s2)
-    a = jet.sqrt(a2)
-    b = jet.loglin(math.sqrt(G3[0]), 1.0 / 6.0, -0.5)                 # Gamma ∝ n_e^(1/3) / T
-    d = jet.div(jet.mul(s2, jet.add(jet.add(a2, G3), jet.mul(a, b))), jet.add(a, b))
-    fw = jet.scale(jet.sub(d, jet.pow15(s2)), -1.0 / 9.0)
-    fs = jet.scale(jet.mul(G, s2), -18.0 / 175.0)
-    g = G[0] / GAMMA_X
-    g *= g
-    y = jet.loglin(g * g, 4.0 / 3.0, -4.0)                             # (Gamma / Gamma_x)^4
-    return jet.div(jet.add(fw, jet.mul(y, fs)), jet.addc(y, 1.0))
+    g = G[0]
+    q = q2[0]
+    iq = 1.0 / (1.0 + q)
+    sig = q * iq                                                       # s^2
+    S = jet.fun(q2, sig, iq * iq, -2.0 * iq * iq * iq)
+    g3 = 3.0 * g
+    a2 = g3 + sig
+    a = math.sqrt(a2)
+    r = math.sqrt(sig)
+    # 1 / a, 1 / r, 1 / (a + b), 1 / (a + r) from one division
+    pb = a + b
+    pr = a + r
+    ar = a * r
+    pbr = pb * pr
+    inv = 1.0 / (ar * pbr)
+    ia = r * pbr * inv
+    ir = a * pbr * inv
+    iab = ar * pr * inv
+    iar = ar * pb * inv
+    # f_w = -(1/9) [a^3 - b^3 - s^3]
+    fw = -(sig * (a2 + g3 + a * b) * iab - sig * r) * (1.0 / 9.0)
+    fw_g = -0.5 * sig * iab
+    fw_s = -0.5 * g * iar                                              # -(1/6)(a - r)
+    fw_gg = 0.75 * sig * iab * ia * ib
+    fw_gs = -0.25 * ia
+    fw_ss = 0.25 * g * iar * ia * ir                                   # (1/12)(1/r - 1/a)
+    # f_s = -(18/175) Gamma s^2
+    k = 18.0 / 175.0
+    fs = -k * g * sig
+    # weights Y0 = 1 / (1 + y), Y1 = y / (1 + y), y = (Gamma / Gamma_x)^4: Y1' = -Y0' = 4 y Y0^2 / Gamma,
+    # Y1'' = (4 y Y0^2 / Gamma^2)(3 - 8 y Y0)
+    y = g / GAMMA_X
+    y *= y
+    y *= y
+    Y0 = 1.0 / (1.0 + y)
+    Y1 = y * Y0
+    w1 = 4.0 * Y1 * Y0 * ig
+    w2 = w1 * ig * (3.0 - 8.0 * Y1)
+    d = fs - fw
+    f = Y0 * fw + Y1 * fs
+    f_g = Y0 * fw_g + Y1 * (-k * sig) + w1 * d
+    f_s = Y0 * fw_s + Y1 * (-k * g)
+    f_gg = Y0 * fw_gg + 2.0 * w1 * (-k * sig - fw_g) + w2 * d
+    f_gs = Y0 * fw_gs + Y1 * (-k) + w1 * (-k * g - fw_s)
+    f_ss = Y0 * fw_ss
+    # chain rule: f(Gamma(a, b), s^2(a, b)), a = ln n_e, b = ln T
+    return (f,
+            f_g * G[1] + f_s * S[1],
+            f_g * G[2] + f_s * S[2],
+            f_gg * G[1] * G[1] + 2.0 * f_gs * G[1] * S[1] + f_ss * S[1] * S[1] + f_g * G[3] + f_s * S[3],
+            f_gg * G[1] * G[2] + f_gs * (G[1] * S[2] + G[2] * S[1]) + f_ss * S[1] * S[2] + f_g * G[4] + f_s * S[4],
+            f_gg * G[2] * G[2] + 2.0 * f_gs * G[2] * S[2] + f_ss * S[2] * S[2] + f_g * G[5] + f_s * S[5])
 
 
 @njit(cache=True, error_model="numpy")
