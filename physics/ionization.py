@@ -244,8 +244,12 @@ def ionization_stages(element: Element, eta: np.ndarray, T: np.ndarray, n_e_full
             e_ln.append(D_r * (G - G_t) + D * (G_r - G_rt))
         ln_q.append(np.log(element.weights[j]) + ln_w[j] - j * eta - C[j] / kT)
     top = np.maximum.reduce(ln_q)
-    ln_sum = top + np.log(sum(np.exp(lq - top) for lq in ln_q))
-    f = [np.exp(lq - ln_sum) for lq in ln_q]
+    # f_j = q_j / sum q with q_j scaled by the largest: the f_j sum to 1 within rounding, which the partials
+    # below need (sum_j f_j (d_j - mean) = 0; d_j ~ C_j / kT^2 is large in cold matter)
+    q = [np.exp(lq - top) for lq in ln_q]
+    tot = sum(q)
+    ln_sum = top + np.log(tot)
+    f = [qj / tot for qj in q]
     ln_f_gw = [-j * eta - C[j] / kT - ln_sum for j in range(n_stages)]
     # partials of ln q_j: eta -> -j; T -> C_j / (k T^2) + d ln w_j / dT; ln rho -> d ln w_j / d ln rho
     d_eta = [-float(j) + zero for j in range(n_stages)]

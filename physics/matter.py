@@ -41,6 +41,7 @@ from .electron_table import _merge, table_eta, table_state
 from .electron_fast import pair_free_state, pair_onset_state, pair_table_state, state_from_points
 from .electrons import _CN, ElectronGas, ElectronState
 from .ionization import ELEMENTS, ionization_stages
+from .matter_kernel import FIELDS, matter_at_root
 from .saha_kernel import solve_saha_compiled, solve_saha_state
 from .thermo import Part
 
@@ -241,7 +242,8 @@ def _saha_density(n_full, r, t, saha, fixed, electrons, pairs):
                                   (solved, lambda nn, tt: electrons_at(nn, tt, electrons, pairs))], n_e, t)
 
 
-def matter(rho, T, comp: Composition, electrons: str, ionization: str, pairs: bool) -> MatterResult:
+def matter(rho, T, comp: Composition, electrons: str, ionization: str, pairs: bool,
+           compiled: bool = True) -> MatterResult:
     """Electrons + ions in ionization equilibrium at (rho, T), with exact derivatives.
 
     Parameters
@@ -256,10 +258,14 @@ def matter(rho, T, comp: Composition, electrons: str, ionization: str, pairs: bo
         Saha H and He with pressure ionization, or everything fully ionized.
     pairs : bool
         Thermal electron–positron pairs (Fermi electrons only).
+    compiled : bool
+        With Saha ionization and Fermi electrons, form everything after the Saha root in the compiled pass
+        (:func:`~thermoplane.physics.matter_kernel.matter_at_root`) where the compiled Saha pass solved the
+        point (the default), or by the numpy passes of :func:`_post_root` everywhere (the reference of the
+        tests; the same values to rounding).
     """
     shape = rho.shape
     r, t = rho.ravel(), T.ravel()
-    k = const.k_B
     pairs = bool(pairs) and electrons == "fermi"
     saha, fixed = _saha_elements(comp, ionization)
     N_full = float(np.sum(comp.X * comp.Z / (comp.A * const.m_u)))
@@ -267,10 +273,19 @@ def matter(rho, T, comp: Composition, electrons: str, ionization: str, pairs: bo
 
     # 1. the free-electron density: n_full where ionization is complete, Saha elsewhere; and the electron gas
     #    there. Fermi electrons: one compiled pass per point (physics.saha_kernel.solve_saha_state) where the
-    #    pair-free table holds the point; the numpy passes for the rest (positrons, outside the table)
+    #    pair-free table holds the point, and everything after the root in a second compiled pass
+    #    (physics.matter_kernel.matter_at_root); the numpy passes for the rest (positrons, outside the table)
     if saha and electrons == "fermi":
         n_e, buf, ok = solve_saha_state(n_full, r, t, saha, fixed, ELEMENTS, pairs)
         rest = np.flatnonzero(~ok)
+        if compiled:
+            assert max(saha) <= 2, "the compiled passes take H and He as Saha elements only"
+            out = matter_at_root(r, t, n_full, n_e, buf, ok, comp, saha, fixed, ELEMENTS)
+            if rest.size:
+                n_e[rest], es_rest = _saha_density(n_full[rest], r[rest], t[rest], saha, fixed, electrons, pairs)
+                sub = _post_root(r[rest], t[rest], n_full[rest], n_e[rest], es_rest, comp, saha, fixed)
+                out[:, rest] = [sub[f] for f in FIELDS]
+            return _result(dict(zip(FIELDS, out)), n_e, n_full, shape)
         if rest.size == 0:
             es = state_from_points(n_e, t, buf)
         else:
@@ -282,8 +297,24 @@ def matter(rho, T, comp: Composition, electrons: str, ionization: str, pairs: bo
     else:
         n_e = n_full.copy()
         es = electrons_at(n_e, t, electrons, pairs)
-    # 2. everything at the solved density, with partials (implicit differentiation of
-    #    G(n; rho, T) = n - n_free(eta(n, T), T, rho) = 0)
+    return _result(_post_root(r, t, n_full, n_e, es, comp, saha, fixed), n_e, n_full, shape)
+
+
+def _result(fields, n_e, n_full, shape) -> MatterResult:
+    rs = lambda a: np.reshape(a, shape)  # noqa: E731
+    part = Part(*(rs(fields[f]) for f in Part.__dataclass_fields__))
+    return MatterResult(part=part, P_e=rs(fields["P_e"]), P_ion=rs(fields["P_ion"]), eta=rs(fields["eta"]),
+                        n_net=rs(n_e), n_minus=rs(fields["n_minus"]), n_plus=rs(fields["n_plus"]),
+                        n_full=rs(n_full), ion_H=rs(fields["ion_H"]), ion_He1=rs(fields["ion_He1"]),
+                        ion_He2=rs(fields["ion_He2"]), mean_Z=rs(fields["mean_Z"]))
+
+
+def _post_root(r, t, n_full, n, es: ElectronState, comp: Composition, saha, fixed) -> dict:
+    """Everything at the solved density n (1-d arrays), by numpy passes: the fields of
+    :data:`~thermoplane.physics.matter_kernel.FIELDS`, with partials from the implicit differentiation of
+    G(n; rho, T) = n - n_free(eta(n, T), T, rho) = 0. :func:`~thermoplane.physics.matter_kernel.matter_at_root`
+    is the same pass compiled (tests/physics/test_compiled_paths.py compares the two)."""
+    k = const.k_B
     eta = es.eta
     stages = _stages(saha, eta, t, n_full)
     n_free, nf_eta, nf_T, nf_ln = _free_electrons(stages, saha, fixed, r)
@@ -298,7 +329,6 @@ def matter(rho, T, comp: Composition, electrons: str, ionization: str, pairs: bo
     # S = (E + P - eta k T n) / T: in degenerate matter that difference is ~eta^2 smaller than its terms
     # and rounding would swamp it (S < 0 measured at eta > 1e5)
     gas = es.gas
-    n = n_e
     P_e = gas.P
     Pe_rho = es.dP_dn * dn_drho
     Pe_T = es.dP_dT_n + es.dP_dn * dn_dT
@@ -360,11 +390,9 @@ def matter(rho, T, comp: Composition, electrons: str, ionization: str, pairs: bo
     part = Part(P=P_e + P_ion, E=Ee + Ei, S=Se + Si, P_rho=Pe_rho + Pi_rho, P_T=Pe_T + Pi_T,
                 E_rho=Ee_rho + Ei_rho, E_T=Ee_T + Ei_T, S_rho=Se_rho + Si_rho, S_T=Se_T + Si_T)
     one = np.ones_like(t)
-    ion_H = stages[1].f[1] if 1 in stages else one
-    ion_He1 = (stages[2].f[1] + stages[2].f[2]) if 2 in stages else one
-    ion_He2 = stages[2].f[2] if 2 in stages else one
-    rs = lambda a: np.reshape(a, shape)  # noqa: E731
-    return MatterResult(part=Part(*(rs(getattr(part, f)) for f in Part.__dataclass_fields__)),
-                        P_e=rs(P_e), P_ion=rs(P_ion), eta=rs(eta), n_net=rs(n), n_minus=rs(gas.n_minus),
-                        n_plus=rs(gas.n_plus), n_full=rs(n_full), ion_H=rs(ion_H), ion_He1=rs(ion_He1),
-                        ion_He2=rs(ion_He2), mean_Z=rs(n_free / (r * N_nuc)))
+    fields = {f: getattr(part, f) for f in Part.__dataclass_fields__}
+    fields.update(P_e=P_e, P_ion=P_ion, eta=eta, n_minus=gas.n_minus, n_plus=gas.n_plus,
+                  ion_H=stages[1].f[1] if 1 in stages else one,
+                  ion_He1=(stages[2].f[1] + stages[2].f[2]) if 2 in stages else one,
+                  ion_He2=stages[2].f[2] if 2 in stages else one, mean_Z=n_free / (r * N_nuc))
+    return fields

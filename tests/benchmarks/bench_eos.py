@@ -9,7 +9,8 @@ issues 11/12; ``--baseline REV`` for another, ``--baseline none`` to skip), the 
 loaded side by side (``git archive REV`` into a temporary folder, imported as a second package), timed
 alternately with the current tree so that both see the same load. Further lines: the per-point quad + brentq
 electron solve (the baseline of bench_electrons.py, scaled from a few points), the compiled steps against
-their numpy counterparts, the dense-plasma terms on 1 thread and on all threads. Asserts nothing.
+their numpy counterparts (electron gas, Saha root, the pass after the root), the dense-plasma terms on 1 thread
+and on all threads. Asserts nothing.
 On a machine shared with other work, wall times of long calls stretch with the load while np.exp's best
 of 50 does not: ``--clock cpu --threads 1`` gives the steadier single-core figures.
 Run: python tests/benchmarks/bench_eos.py [--baseline REV] [--repeat N] [--threads N] [--clock wall|cpu]
@@ -146,16 +147,25 @@ def compiled_against_previous(rho, T, comp, t_exp):
     import numba
 
     from thermoplane.physics import matter as M
-    from thermoplane.physics.electron_fast import pair_free_state
+    from thermoplane.physics.electron_fast import pair_free_state, state_from_points
+    from thermoplane.physics.matter_kernel import matter_at_root
     from thermoplane.physics.electron_table import table_state
     from thermoplane.physics.eos.dense_plasma import dense_parts
 
     n_full = rho * float(np.sum(comp.X * comp.Z / (comp.A * const.m_u)))
     saha, fixed = M._saha_elements(comp, "saha")
+    n_e, buf, ok = M.solve_saha_state(n_full, rho, T, saha, fixed, M.ELEMENTS, True)
+
+    def post_root_numpy():
+        es = state_from_points(n_e[ok], T[ok], buf[ok])
+        return M._post_root(rho[ok], T[ok], n_full[ok], n_e[ok], es, comp, saha, fixed)
+
     rows = [("pair-free electron gas at n_full", lambda: table_state(n_full, T, pairs=False),
              lambda: pair_free_state(n_full, T)),
             ("Saha root n_e (all points)", lambda: M._solve_saha(n_full, rho, T, saha, fixed, "fermi", True),
-             lambda: M.solve_saha_compiled(n_full, rho, T, saha, fixed, M.ELEMENTS, True))]
+             lambda: M.solve_saha_compiled(n_full, rho, T, saha, fixed, M.ELEMENTS, True)),
+            (f"after the root ({ok.mean():.0%} of the points, the compiled root's)", post_root_numpy,
+             lambda: matter_at_root(rho, T, n_full, n_e, buf, ok, comp, saha, fixed, M.ELEMENTS))]
     for name, old, new in rows:
         new()
         t_old, t_new = best(old, 3), best(new, 3)

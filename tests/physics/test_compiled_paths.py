@@ -110,3 +110,73 @@ def test_fused_saha_state_matches_the_numpy_passes(X, Y):
     for name in ("eta", "dP_dn", "dP_dT_n", "dE_dn", "dE_dT_n", "deta_dn", "deta_dT"):
         np.testing.assert_allclose(getattr(new, name), getattr(old, name), rtol=1e-9, atol=0, err_msg=name)
     np.testing.assert_allclose(new.gas.P, old.gas.P, rtol=1e-9, atol=0)
+
+
+def _natural_scales(part, comp, rho, T):
+    """Scales of P, E, S and their partials for a tolerance where a quantity crosses zero or cancels (E_rho
+    of a classical gas is ~0 against E / rho): P / rho, P / T, |E| / rho, |E| / T, max(|S|, N k) / rho, ..."""
+    S = np.maximum(np.abs(part.S), float(np.sum(comp.X / (comp.A * const.m_u))) * const.k_B)
+    P, E = np.abs(part.P), np.abs(part.E)
+    return {"P": P, "E": E, "S": S, "P_rho": P / rho, "P_T": P / T, "E_rho": E / rho, "E_T": E / T,
+            "S_rho": S / rho, "S_T": S / T}
+
+
+@pytest.mark.parametrize("X, Y", [(0.70, 0.28), (1.0, 0.0), (0.0, 1.0)])
+def test_compiled_post_root_pass_matches_the_numpy_pass(X, Y):
+    """matter() with the compiled pass after the Saha root (physics.matter_kernel) against matter(compiled=False)
+    (the numpy passes of matter._post_root at the same root) on a plane over the default range: every output
+    within 1e-12 of its value, or of its natural scale where it crosses zero or cancels."""
+    from thermoplane.physics.matter_kernel import FIELDS, matter_at_root
+    from thermoplane.physics.saha_kernel import solve_saha_state
+
+    comp = ph.Composition.from_xyz(X, Y, 1.0 - X - Y)
+    new = M.matter(RHO, T, comp, "fermi", "saha", True)
+    old = M.matter(RHO, T, comp, "fermi", "saha", True, compiled=False)
+    # the compiled pass is what matter() returned where the compiled Saha pass solved the point (most points)
+    saha, fixed = M._saha_elements(comp, "saha")
+    n_e, buf, ok = solve_saha_state(new.n_full, RHO, T, saha, fixed, M.ELEMENTS, True)
+    assert ok.mean() > 0.5
+    out = dict(zip(FIELDS, matter_at_root(RHO, T, new.n_full, n_e, buf, ok, comp, saha, fixed, M.ELEMENTS)))
+    np.testing.assert_array_equal(new.part.S[ok], out["S"][ok])
+    np.testing.assert_array_equal(new.part.E_T[ok], out["E_T"][ok])
+    for name, scale in _natural_scales(old.part, comp, RHO, T).items():
+        a, b = getattr(new.part, name), getattr(old.part, name)
+        assert np.all(np.isfinite(a)), name
+        err = np.abs(a - b)
+        assert np.all(err <= 1e-12 * np.abs(b) + 1e-12 * scale), (name, float(np.max(err / (np.abs(b) + scale))))
+    # the same root and gas: identical
+    for name in ("P_e", "P_ion", "eta", "n_net", "n_minus", "n_plus", "n_full"):
+        np.testing.assert_array_equal(getattr(new, name), getattr(old, name), err_msg=name)
+    for name in ("ion_H", "ion_He1", "ion_He2", "mean_Z"):
+        np.testing.assert_allclose(getattr(new, name), getattr(old, name), rtol=1e-12, atol=1e-14, err_msg=name)
+
+
+@pytest.mark.skipif(np.finfo(np.longdouble).eps >= np.finfo(float).eps, reason="no extended precision here")
+@pytest.mark.parametrize("X, Y", [(0.70, 0.28), (1.0, 0.0), (0.0, 1.0)])
+def test_compiled_and_numpy_post_root_passes_are_both_accurate_to_rounding(X, Y):
+    """The tolerance above is rounding: both passes stay within 1e-12 (natural scales) of the numpy pass run in
+    extended precision (np.longdouble, ~19 digits) on the same electron gas. Cold matter through pressure
+    ionization is the hard case (partials of ~C/kT^2 size cancel there)."""
+    from thermoplane.physics.electron_fast import state_from_points
+    from thermoplane.physics.matter_kernel import FIELDS, matter_at_root
+    from thermoplane.physics.saha_kernel import solve_saha_state
+
+    comp = ph.Composition.from_xyz(X, Y, 1.0 - X - Y)
+    saha, fixed = M._saha_elements(comp, "saha")
+    n_full = RHO * float(np.sum(comp.X * comp.Z / (comp.A * const.m_u)))
+    n_e, buf, ok = solve_saha_state(n_full, RHO, T, saha, fixed, M.ELEMENTS, True)
+    r, t, nf, n, b = RHO[ok], T[ok], n_full[ok], n_e[ok], buf[ok]
+    compiled = dict(zip(FIELDS, matter_at_root(r, t, nf, n, b, np.ones(r.size, bool), comp, saha, fixed,
+                                               M.ELEMENTS)))
+    numpy_pass = M._post_root(r, t, nf, n, state_from_points(n, t, b), comp, saha, fixed)
+    L = np.longdouble
+    exact = M._post_root(r.astype(L), t.astype(L), nf.astype(L), n.astype(L),
+                         state_from_points(n.astype(L), t.astype(L), b.astype(L)), comp, saha, fixed)
+    assert exact["E_T"].dtype == L
+    scales = _natural_scales(M.Part(*(numpy_pass[f] for f in M.Part.__dataclass_fields__)), comp, r, t)
+    for name, scale in scales.items():
+        for label, got in (("compiled", compiled), ("numpy", numpy_pass)):
+            err = (np.abs(got[name] - exact[name]) / (np.abs(exact[name]) + scale)).astype(float)
+            assert err.max() <= 1e-12, (name, label, float(err.max()))
+    for name in ("ion_H", "ion_He1", "ion_He2", "mean_Z"):
+        np.testing.assert_allclose(compiled[name], exact[name].astype(float), rtol=1e-12, atol=1e-14, err_msg=name)
