@@ -107,10 +107,15 @@ def fermi_state(n, T, pairs: bool) -> ElectronState:
     if not np.any(need):
         return st0
     hot = need & (T >= 10.0**PAIR_TABLE_LOG_T)
-    onset = need & ~hot
-    keep = ~need
-    return _merge(n.size, [(keep, lambda nn, tt: _subset(st0, keep)),
-                           (hot, pair_table_state), (onset, pair_onset_state)], n, T)
+    # written into st0's own (fresh) arrays at those points: no merged copy of every field
+    for mask, state_at in ((hot, pair_table_state), (need & ~hot, pair_onset_state)):
+        if mask.any():
+            st = state_at(n[mask], T[mask])
+            for name in ElectronGas._fields:
+                getattr(st0.gas, name)[mask] = getattr(st.gas, name)
+            for name in ElectronState._fields[1:]:
+                getattr(st0, name)[mask] = getattr(st, name)
+    return st0
 
 
 def _subset(st: ElectronState, mask) -> ElectronState:
