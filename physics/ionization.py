@@ -69,7 +69,8 @@ import numpy as np
 
 from . import constants as const
 
-__all__ = ["Element", "ELEMENTS", "BOHR_RADIUS", "ionization_stages", "StageState", "S_ONSET", "S_COMPLETE"]
+__all__ = ["Element", "ELEMENTS", "BOHR_RADIUS", "ionization_stages", "StageState", "S_ONSET", "S_COMPLETE",
+           "ALL_DESTROYED_T"]
 
 #: Bohr radius, cm (from scipy.constants via hbar^2 / (m_e e^2))
 BOHR_RADIUS = const.hbar**2 / (const.m_e * const.e_esu**2)
@@ -139,6 +140,10 @@ S_ONSET = 0.3
 S_COMPLETE = 1.8
 #: Temperature scale of the thermal term of the destruction parameter (s grows as (T / this)^4).
 THERMAL_DESTRUCTION_T = 1.35e8
+#: At and above this temperature the thermal term alone completes the step (b = 1) at any density: every
+#: bound state of H and He is gone and the Saha equilibrium is full ionization exactly (a margin of 1e-6
+#: over the point where (T / THERMAL_DESTRUCTION_T)^4 = S_COMPLETE, so rounding cannot leave b below 1)
+ALL_DESTROYED_T = THERMAL_DESTRUCTION_T * S_COMPLETE**0.25 * (1.0 + 1e-6)
 #: ln w of a destroyed state: exp() gives exactly 0, quietly, whatever eta is.
 _DESTROYED = -1.0e300
 

@@ -40,7 +40,7 @@ from .composition import Composition
 from .electron_table import _merge, table_eta, table_state
 from .electron_fast import pair_free_state, pair_onset_state, pair_table_state, state_from_points
 from .electrons import _CN, ElectronGas, ElectronState
-from .ionization import ELEMENTS, ionization_stages
+from .ionization import ALL_DESTROYED_T, ELEMENTS, ionization_stages
 from .matter_kernel import FIELDS, matter_at_root
 from .saha_kernel import solve_saha_compiled, solve_saha_state
 from .thermo import Part
@@ -286,6 +286,17 @@ def matter(rho, T, comp: Composition, electrons: str, ionization: str, pairs: bo
         if compiled:
             assert max(saha) <= 2, "the compiled passes take H and He as Saha elements only"
             out = matter_at_root(r, t, n_full, n_e, buf, ok, comp, saha, fixed, ELEMENTS)
+            # where every bound state is destroyed (T >= ALL_DESTROYED_T: most of the points with positrons)
+            # the Saha equilibrium is full ionization exactly: the fully ionized passes, plus the energy of
+            # ionization the Saha stages count (their zero is the neutral atom); equal to rounding (tested)
+            hot = rest[t[rest] >= ALL_DESTROYED_T]
+            rest = rest[t[rest] < ALL_DESTROYED_T]
+            if hot.size:
+                n_e[hot] = n_full[hot]
+                sub = _post_root(r[hot], t[hot], n_full[hot], n_e[hot], electrons_at(n_e[hot], t[hot], electrons, pairs),
+                                 comp, {}, N_full)
+                sub["E"] = sub["E"] + sum(N * ELEMENTS[z].cumulative_erg[-1] for z, N in saha.items())
+                out[:, hot] = [sub[f] for f in FIELDS]
             if rest.size:
                 n_e[rest], es_rest = _saha_density(n_full[rest], r[rest], t[rest], saha, fixed, electrons, pairs)
                 sub = _post_root(r[rest], t[rest], n_full[rest], n_e[rest], es_rest, comp, saha, fixed)
