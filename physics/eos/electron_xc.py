@@ -46,7 +46,7 @@ from numba import njit
 from .. import constants as const
 from . import jet
 from .ion_liquid import ocp_liquid
-from .hermite import cell_coefficients, taylor_cell
+from .hermite import cell_coefficients, locate_cell, taylor_cell
 from .plasma_parameters import coupling
 from .screening import degenerate_energy
 
@@ -169,11 +169,7 @@ def zero_T_energies(ln_n):
     """(e_x0, epsilon_F, e_c0, E_d) at ln n_e, each as (value, d/d ln n_e, d2/d ln n_e^2), erg: from the
     table inside its range, else from :func:`zero_T_jets`."""
     if _LN0 <= ln_n < _LN1:
-        t = (ln_n - _LN0) / _LN_STEP
-        i = int(t)
-        if i > _ZERO_T_CELLS.shape[0] - 1:
-            i = _ZERO_T_CELLS.shape[0] - 1
-        s = t - i
+        i, s = locate_cell(ln_n, _LN0, _LN_STEP, _ZERO_T_CELLS.shape[0])
         return (taylor_cell(_ZERO_T_CELLS, i, 0, s, _LN_STEP), taylor_cell(_ZERO_T_CELLS, i, 6, s, _LN_STEP),
                 taylor_cell(_ZERO_T_CELLS, i, 12, s, _LN_STEP), taylor_cell(_ZERO_T_CELLS, i, 18, s, _LN_STEP))
     ex0, eF, ec0, Ed = zero_T_jets(math.exp(ln_n))

@@ -17,7 +17,7 @@ from __future__ import annotations
 import numpy as np
 from numba import njit
 
-__all__ = ["quintic", "lookup", "cell_coefficients", "taylor_lookup", "taylor_cell"]
+__all__ = ["quintic", "lookup", "cell_coefficients", "locate_cell", "taylor_lookup", "taylor_cell"]
 
 
 @njit(cache=True, error_model="numpy")
@@ -75,19 +75,22 @@ def cell_coefficients(f, g, k, h):
 
 
 @njit(cache=True, inline="always", error_model="numpy")
+def locate_cell(x, x0, h, n_cells):
+    """(cell i, position s in [0, 1]) of x in cells of width h from x0 (the last cell takes x at its end; the
+    caller checks that x0 <= x <= x0 + n_cells h)."""
+    t = (x - x0) / h
+    i = int(t)
+    if i > n_cells - 1:
+        i = n_cells - 1
+    return i, t - i
+
+
+@njit(cache=True, inline="always", error_model="numpy")
 def taylor_lookup(x, x0, h, cf):
     """Value and first two derivatives at x of the interpolant stored by :func:`cell_coefficients` (cells
     from x0, width h; the caller checks that x0 <= x <= x0 + n h)."""
-    t = (x - x0) / h
-    i = int(t)
-    if i > cf.shape[0] - 1:
-        i = cf.shape[0] - 1
-    s = t - i
-    c0, c1, c2, c3, c4, c5 = cf[i, 0], cf[i, 1], cf[i, 2], cf[i, 3], cf[i, 4], cf[i, 5]
-    v = c0 + s * (c1 + s * (c2 + s * (c3 + s * (c4 + s * c5))))
-    dv = c1 + s * (2.0 * c2 + s * (3.0 * c3 + s * (4.0 * c4 + s * 5.0 * c5)))
-    ddv = 2.0 * c2 + s * (6.0 * c3 + s * (12.0 * c4 + s * 20.0 * c5))
-    return v, dv / h, ddv / (h * h)
+    i, s = locate_cell(x, x0, h, cf.shape[0])
+    return taylor_cell(cf, i, 0, s, h)
 
 
 @njit(cache=True, inline="always", error_model="numpy")

@@ -70,7 +70,7 @@ from . import jet
 from .ion_solid import HARMONIC_CLASSICAL, MADELUNG_BCC, harmonic_loglin
 from ..coulomb import A1, A2, A3, B1, B2, B3, B4   # the liquid fit's coefficients, kept in one place
 from .coulomb_term import _HG, _LG0, _LG1, _TAB_F, _TAB_U, _TAB_V, _ocp
-from .hermite import cell_coefficients, taylor_cell, taylor_lookup
+from .hermite import cell_coefficients, locate_cell, taylor_cell, taylor_lookup
 from .plasma_parameters import coupling, ideal_ion, quantum
 
 __all__ = ["ocp_liquid", "ocp_scalar", "ocp_u", "jet_of_ln_gamma", "jet_of_uv", "quantum_excess", "liquid_ion",
@@ -200,6 +200,16 @@ def _gamma0(s, g_e):
 
 
 @njit(cache=True, inline="always", error_model="numpy")
+def _quartic_weight(x):
+    """x^4, W = 1 / (1 + x^4), x^4 W (= 1 - W, without cancellation), dW / d ln x and d2W / d ln x^2."""
+    x2 = x * x
+    X4 = x2 * x2
+    w = 1.0 / (1.0 + X4)
+    xw = X4 * w
+    return X4, w, xw, -4.0 * xw * w, 16.0 * xw * w * (2.0 * xw - 1.0)
+
+
+@njit(cache=True, inline="always", error_model="numpy")
 def _s_rest(C4, m, lnG0, G0, ocp, g_e):
     """Delta(Gamma_0(s)), W(s) and 1 - W(s), each with its first two derivatives in s, from :func:`_gamma0`
     and f_OCP's (f, f_u, f_uu) at ln Gamma_0. W = 1 / (1 + W4), W4 = (Gamma_0 / GAMMA_FROZEN)^4 with the
@@ -207,13 +217,7 @@ def _s_rest(C4, m, lnG0, G0, ocp, g_e):
     b0, b1, b2 = _delta(lnG0, G0, ocp)
     bs = b1 * m
     bss = m * m * (b2 - 4.0 * C4 * b1)
-    g4 = g_e * (ETA_FADE / GAMMA_FROZEN)
-    g4 *= g4
-    W4 = g4 * g4
-    w = 1.0 / (1.0 + W4)
-    ww = W4 * w
-    w1 = -4.0 * ww * w
-    w2 = 16.0 * ww * w * (2.0 * ww - 1.0)
+    _, w, ww, w1, w2 = _quartic_weight(g_e * (ETA_FADE / GAMMA_FROZEN))
     return b0, bs, bss, w, w1, w2, ww, -w1, -w2
 
 
@@ -256,11 +260,7 @@ def s_functions(s, g_e):
     """(Delta(Gamma_0), d/ds, d2/ds2, W, W', W'', 1 - W, -W', -W'') at s = ln(Gamma / eta), g_e = e^s: the
     table inside its range, else the formulas."""
     if _S0 <= s < _S1:
-        t = (s - _S0) / _S_STEP
-        i = int(t)
-        if i > _S_CELLS.shape[0] - 1:
-            i = _S_CELLS.shape[0] - 1
-        x = t - i
+        i, x = locate_cell(s, _S0, _S_STEP, _S_CELLS.shape[0])
         b = taylor_cell(_S_CELLS, i, 0, x, _S_STEP)
         w = taylor_cell(_S_CELLS, i, 6, x, _S_STEP)
         ww = taylor_cell(_S_CELLS, i, 12, x, _S_STEP)
@@ -283,13 +283,7 @@ def quantum_excess(g, e, u, v, ocp):
     d0, d1, d2 = _delta(u, g, ocp)
     # D(v) = 1 / (1 + E4), E4 = (eta / ETA_FADE)^4 ∝ e^(4 v)
     ie = 1.0 / e
-    e3 = e * (1.0 / ETA_FADE)
-    e3 *= e3
-    E4 = e3 * e3
-    D = 1.0 / (1.0 + E4)
-    ED = E4 * D
-    D1 = -4.0 * ED * D
-    D2 = 16.0 * ED * D * (2.0 * ED - 1.0)
+    E4, D, ED, D1, D2 = _quartic_weight(e * (1.0 / ETA_FADE))
     # (b) faded: Delta(u) D(v)
     faded = (d0 * D, d1 * D, d0 * D1, d2 * D, d1 * D1, d0 * D2)
     # (a) frozen: r Delta(ln(Gamma / r)), r = (1 + E4)^(1/4), ln r = l(v): l_v = E4 D, l_vv = 4 E4 D^2

@@ -72,6 +72,24 @@ def _horner2(c, degree, x):
     return p0, p1, p2
 
 
+@njit(cache=True, inline="always", error_model="numpy")
+def _rational(e):
+    """The fit's rational part q = A / B at eta = e and its first two derivatives (with A and B):
+    (A, B, q, q', q''); (A/B)' = (A' - q B') / B, (A/B)'' = (A'' - 2 q' B' - q B'') / B."""
+    A0, A1, A2 = _horner2(_A, 8, e)
+    B0, B1, B2 = _horner2(_B, 7, e)
+    e2 = e * e
+    e7 = e2 * e2 * e2 * e
+    c6 = _ALPHA6 * _A[6]
+    c8 = _ALPHA8 * _A[8]
+    B0 += (c6 + c8 * e2) * e7 * e2
+    B1 += (9.0 * c6 + 11.0 * c8 * e2) * e7 * e
+    B2 += (72.0 * c6 + 110.0 * c8 * e2) * e7
+    q = A0 / B0
+    q1 = (A1 - q * B1) / B0
+    return A0, B0, q, q1, (A2 - 2.0 * q1 * B1 - q * B2) / B0
+
+
 @njit(cache=True, error_model="numpy")
 def harmonic_scalar(e):
     """f_harm and its first two derivatives in eta at eta = e (a plain number): (h, h', h'').
@@ -92,18 +110,7 @@ def harmonic_scalar(e):
         h += math.log(-m)
         h1 -= a * r
         h2 -= a * a * r / m
-    A0, A1, A2 = _horner2(_A, 8, e)
-    B0, B1, B2 = _horner2(_B, 7, e)
-    e2 = e * e
-    e7 = e2 * e2 * e2 * e
-    c6 = _ALPHA6 * _A[6]
-    c8 = _ALPHA8 * _A[8]
-    B0 += (c6 + c8 * e2) * e7 * e2
-    B1 += (9.0 * c6 + 11.0 * c8 * e2) * e7 * e
-    B2 += (72.0 * c6 + 110.0 * c8 * e2) * e7
-    q = A0 / B0
-    q1 = (A1 - q * B1) / B0
-    q2 = (A2 - 2.0 * q1 * B1 - q * B2) / B0
+    _, _, q, q1, q2 = _rational(e)
     return h - q, h1 - q1, h2 - q2
 
 
@@ -129,18 +136,7 @@ def harmonic_thermal(e, classical=False):
         g += math.log(m / y) if classical else math.log(-m)
         g1 -= a * r
         g2 -= a * a * r / m
-    A0, A1, A2 = _horner2(_A, 8, e)
-    B0, B1, B2 = _horner2(_B, 7, e)
-    e2 = e * e
-    e7 = e2 * e2 * e2 * e
-    c6 = _ALPHA6 * _A[6]
-    c8 = _ALPHA8 * _A[8]
-    B0 += (c6 + c8 * e2) * e7 * e2
-    B1 += (9.0 * c6 + 11.0 * c8 * e2) * e7 * e
-    B2 += (72.0 * c6 + 110.0 * c8 * e2) * e7
-    q = A0 / B0
-    q1 = (A1 - q * B1) / B0
-    q2 = (A2 - 2.0 * q1 * B1 - q * B2) / B0
+    A0, B0, q, q1, q2 = _rational(e)
     g1 -= q1
     g2 -= q2
     if classical:
