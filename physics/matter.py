@@ -37,7 +37,7 @@ import numpy as np
 
 from . import constants as const
 from .composition import Composition
-from .electron_table import _merge, table_eta, table_state
+from .electron_table import _merge, table_eta
 from .electron_fast import pair_free_state, pair_onset_state, pair_table_state, state_from_points
 from .electrons import _CN, ElectronGas, ElectronState
 from .ionization import ALL_DESTROYED_T, ELEMENTS, ionization_stages
