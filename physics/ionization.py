@@ -57,6 +57,16 @@ ionization) is left out, so the pressure rises monotonically: inside the band
 rho^2 (dE/drho)_T = P - T (dP/dT)_rho holds only approximately (outside it,
 exactly).
 
+Planck-Larkin weight (physics.planck_larkin): of the Boltzmann factor e^x
+(x = chi/kT) of a bound level only e^x - 1 - x counts as bound (Planck 1924;
+Larkin 1960; Ebeling, Kraeft & Kremp 1976), as in the chemical picture. Stage
+j keeps its Z - j electrons, so ln w_j gains Phi_j(T) = sum_{k >= j}
+ln(1 - (1 + x_k) e^-x_k), a function of T alone: a free energy -kT Phi_j per
+bound particle, whose energy kT dPhi_j/dln T joins E_w,j. Nothing changes
+while kT << chi; as kT grows past chi the bound state fades out, so hot dense
+hydrogen (a Sun-like interior) is ionized where ground-state Saha alone left
+a few per cent neutral.
+
 Metals are treated as fully ionized at every (rho, T). Only ground states
 are counted (no excited levels, no molecules, no H-).
 """
@@ -68,6 +78,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from . import constants as const
+from .planck_larkin import stage_sums
 
 __all__ = ["Element", "ELEMENTS", "BOHR_RADIUS", "ionization_stages", "StageState", "S_ONSET", "S_COMPLETE",
            "ALL_DESTROYED_T"]
@@ -232,20 +243,23 @@ def ionization_stages(element: Element, eta: np.ndarray, T: np.ndarray, n_e_full
     G_r, G_t = G_u * u_r, G_u * u_t
     G_rt = G_uu * u_r * u_t - G_u * a_rho * u_t            # d2u / dln rho dln T = -4 a_rho a_T
     G_tt = G_uu * u_t**2 + 4.0 * G_u * u_t * a_rho          # d2u / dln T^2 = 16 a_T a_rho
+    # the Planck-Larkin factor of every bound stage (physics.planck_larkin): Phi_j(T) and its ln T partials
+    pl = stage_sums(np.broadcast_to(T, shape), Z, C) if pressure_ionization else np.zeros((3, n_stages) + shape)
     ln_q, ln_w, w_T, w_ln, e_w, e_T, e_ln = [], [], [], [], [], [], []
     for j in range(n_stages):
         if j == Z:                     # the bare nucleus is never destroyed
             for lst in (ln_w, w_T, w_ln, e_w, e_T, e_ln):
                 lst.append(zero)
         else:
-            D = C[Z] - C[j] + (Z - j) * E_F                      # F_w = G D, erg per particle
+            D = C[Z] - C[j] + (Z - j) * E_F                      # F_w = G D - kT Phi_j, erg per particle
             D_r = (Z - j) * E_F_ln
-            ln_w.append(np.where(gone, _DESTROYED, -G * D / kT))
-            w_T.append((G - G_t) * D / (kT * T))                # d ln w / dT at fixed rho
+            p0, p1, p2 = pl[0, j], pl[1, j], pl[2, j]
+            ln_w.append(np.where(gone, _DESTROYED, -G * D / kT + p0))
+            w_T.append(((G - G_t) * D / kT + p1) / T)            # d ln w / dT at fixed rho
             w_ln.append(-(G_r * D + G * D_r) / kT)
-            # E_w = F_w - T dF_w/dT = D (G - G_t), its partials; 0 where the state is gone (f = 0 there)
-            e_w.append(D * (G - G_t))
-            e_T.append(D * (G_t - G_tt) / T)
+            # E_w = F_w - T dF_w/dT = D (G - G_t) + kT Phi_j', its partials; 0 where the state is gone
+            e_w.append(np.where(gone, 0.0, D * (G - G_t) + kT * p1))
+            e_T.append(np.where(gone, 0.0, D * (G_t - G_tt) / T + const.k_B * (p1 + p2)))
             e_ln.append(D_r * (G - G_t) + D * (G_r - G_rt))
         ln_q.append(np.log(element.weights[j]) + ln_w[j] - j * eta - C[j] / kT)
     top = np.maximum.reduce(ln_q)

@@ -33,6 +33,7 @@ from numba import njit, prange
 from . import constants as const
 from .eos.parallel import serialized
 from .ionization import BOHR_RADIUS, S_COMPLETE, S_ONSET, THERMAL_DESTRUCTION_T
+from .planck_larkin import stage_sums_point
 
 __all__ = ["FIELDS", "matter_at_root"]
 
@@ -93,12 +94,13 @@ def _exp(x):
 
 
 @njit(cache=True, error_model="numpy", inline="always")
-def _stages(e, Zi, lng, C, eta, i_kT, i_T, gone, G, G_r, G_t, G_rt, G_tt, E_F, E_F_ln, st):
+def _stages(e, Zi, lng, C, eta, kT, i_kT, i_T, gone, G, G_r, G_t, G_rt, G_tt, E_F, E_F_ln, pls, st):
     """ionization_stages of element e (Zi <= 2; rows e of lng, C) at one point into st[e] (10 rows x 3
     stages, rows _F...); returns the mean charge and its partials in eta, T, ln rho.
 
-    f_j = q_j / sum q with q_j = exp(ln q_j - max ln q), as ionization_stages has it. Arrays are indexed in
-    place, never sliced (no array views per point)."""
+    f_j = q_j / sum q with q_j = exp(ln q_j - max ln q), as ionization_stages has it. pls: the Planck-Larkin
+    factors of the element's stages at this T and their ln T partials (physics.planck_larkin.stage_sums_point).
+    Arrays are indexed in place, never sliced (no array views per point)."""
     lq0 = lq1 = lq2 = -math.inf
     for j in range(Zi + 1):
         c_kT = C[e, j] * i_kT
@@ -110,14 +112,15 @@ def _stages(e, Zi, lng, C, eta, i_kT, i_T, gone, G, G_r, G_t, G_rt, G_tt, E_F, E
             st[e, _ET, j] = 0.0
             st[e, _ELN, j] = 0.0
         else:
-            # F_w = G D (ionization.py): D = (C_Z - C_j) + (Z - j) E_F
+            # F_w = G D - kT Phi_j (ionization.py): D = (C_Z - C_j) + (Z - j) E_F, Phi_j the Planck-Larkin factor
             D = C[e, Zi] - C[e, j] + (Zi - j) * E_F
             D_r = (Zi - j) * E_F_ln
-            lnw = _DESTROYED if gone else -G * D * i_kT
-            w_T = (G - G_t) * D * (i_kT * i_T)
+            p1 = pls[1, j]
+            lnw = _DESTROYED if gone else -G * D * i_kT + pls[0, j]
+            w_T = ((G - G_t) * D * i_kT + p1) * i_T
             st[e, _WLN, j] = -(G_r * D + G * D_r) * i_kT
-            st[e, _EW, j] = D * (G - G_t)
-            st[e, _ET, j] = D * (G_t - G_tt) * i_T
+            st[e, _EW, j] = 0.0 if gone else D * (G - G_t) + kT * p1
+            st[e, _ET, j] = 0.0 if gone else D * (G_t - G_tt) * i_T + _K * (p1 + pls[2, j])
             st[e, _ELN, j] = D_r * (G - G_t) + D * (G_r - G_rt)
         st[e, _WT, j] = w_T
         st[e, _FT, j] = c_kT * i_T + w_T          # d ln q_j / dT for now
@@ -165,8 +168,9 @@ def _stages(e, Zi, lng, C, eta, i_kT, i_T, gone, G, G_r, G_t, G_rt, G_tt, E_F, E
 
 @njit(cache=True, error_model="numpy", inline="always")
 def _point(rho, T, n_full, n, buf, i, fixed, el_Z, el_N, el_lng, el_C, nuc_N, nuc_lnN, nuc_lnA15, nuc_el, N_nuc,
-           ln_xn_per_rho, st, out):
-    """matter._post_root at point i: the electron gas buf[i] (electron_point layout) at n_e = n; into out[:, i]."""
+           ln_xn_per_rho, st, pls, out):
+    """matter._post_root at point i: the electron gas buf[i] (electron_point layout) at n_e = n; into out[:, i].
+    pls[k]: the Planck-Larkin factors of element k at T (stage_sums_point)."""
     kT = _K * T
     # divisions are the costliest arithmetic here: multiply by reciprocals (the same to rounding)
     i_kT = 1.0 / kT
@@ -211,8 +215,8 @@ def _point(rho, T, n_full, n, buf, i, fixed, el_Z, el_N, el_lng, el_C, nuc_N, nu
     d_T = 0.0
     d_ln = 0.0
     for k in range(el_Z.size):
-        zb, z_eta, z_T, z_ln = _stages(k, el_Z[k], el_lng, el_C, eta, i_kT, i_T, gone, G, G_r, G_t, G_rt, G_tt,
-                                       E_F, E_F_ln, st)
+        zb, z_eta, z_T, z_ln = _stages(k, el_Z[k], el_lng, el_C, eta, kT, i_kT, i_T, gone, G, G_r, G_t, G_rt, G_tt,
+                                       E_F, E_F_ln, pls[k], st)
         zsum += el_N[k] * zb
         d_eta += el_N[k] * z_eta
         d_T += el_N[k] * z_T
@@ -326,11 +330,19 @@ def _many(rho, T, n_full, n_e, buf, ok, fixed, el_Z, el_N, el_lng, el_C, nuc_N, 
     n = rho.size
     for c in prange(TASKS):
         st = np.empty((el_Z.size, 10, 3))          # one scratch per task, reused point after point
+        # the Planck-Larkin factors per element (physics.planck_larkin.stage_sums_point) depend on T alone:
+        # formed again only where T changes (a map's rows share T)
+        pls = np.empty((el_Z.size, 3, 3))
+        last_T = math.nan
         for start in range(c * BLOCK, n, TASKS * BLOCK):
             for i in range(start, min(start + BLOCK, n)):
                 if ok[i]:
+                    if T[i] != last_T:
+                        for k in range(el_Z.size):
+                            stage_sums_point(T[i], el_Z[k], el_C[k], pls[k])
+                        last_T = T[i]
                     _point(rho[i], T[i], n_full[i], n_e[i], buf, i, fixed, el_Z, el_N, el_lng, el_C, nuc_N,
-                           nuc_lnN, nuc_lnA15, nuc_el, N_nuc, ln_xn_per_rho, st, out)
+                           nuc_lnN, nuc_lnA15, nuc_el, N_nuc, ln_xn_per_rho, st, pls, out)
 
 
 @serialized

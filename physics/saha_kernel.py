@@ -31,6 +31,7 @@ from .electrons import _CN
 from .eos.electron_kernel import electron_arrays, electron_point
 from .eos.parallel import serialized
 from .ionization import S_COMPLETE, S_ONSET, THERMAL_DESTRUCTION_T, BOHR_RADIUS
+from .planck_larkin import planck_larkin
 
 __all__ = ["solve_saha_compiled", "solve_saha_state"]
 
@@ -61,23 +62,24 @@ def _step_b(s):
 
 
 @njit(cache=True, error_model="numpy")
-def _lnq(j, Zi, lng, C, eta, kT, gb, gone, ef):
-    """ln q_j of stage j and its eta-partial (ionization_stages, one point); ef = E_F(n_full) / kT."""
+def _lnq(j, Zi, lng, C, eta, kT, gb, gone, ef, pl):
+    """ln q_j of stage j and its eta-partial (ionization_stages, one point); ef = E_F(n_full) / kT, pl the
+    Planck-Larkin factors Phi_j of the element's stages at this T (:func:`_fill_pl`)."""
     if j == Zi:                       # the bare nucleus is never destroyed
         lnw = 0.0
     elif gone:
         lnw = -1.0e300
     else:
-        lnw = -gb * ((C[Zi] - C[j]) / kT + (Zi - j) * ef)
+        lnw = -gb * ((C[Zi] - C[j]) / kT + (Zi - j) * ef) + pl[j]
     return lng[j] + lnw - j * eta - C[j] / kT, -float(j)
 
 
 @njit(cache=True, error_model="numpy")
-def _zbar(Zi, lng, C, eta, kT, gb, gone, ef):
+def _zbar(Zi, lng, C, eta, kT, gb, gone, ef, pl):
     """Mean charge of an element with Zi <= 2 and its eta-partial at fixed T and rho (no allocation)."""
-    l0, d0 = _lnq(0, Zi, lng, C, eta, kT, gb, gone, ef)
-    l1, d1 = _lnq(1, Zi, lng, C, eta, kT, gb, gone, ef)
-    l2, d2 = (_lnq(2, Zi, lng, C, eta, kT, gb, gone, ef) if Zi == 2 else (-math.inf, 0.0))
+    l0, d0 = _lnq(0, Zi, lng, C, eta, kT, gb, gone, ef, pl)
+    l1, d1 = _lnq(1, Zi, lng, C, eta, kT, gb, gone, ef, pl)
+    l2, d2 = (_lnq(2, Zi, lng, C, eta, kT, gb, gone, ef, pl) if Zi == 2 else (-math.inf, 0.0))
     top = max(l0, max(l1, l2))
     q0 = math.exp(l0 - top)
     q1 = math.exp(l1 - top)
@@ -89,15 +91,29 @@ def _zbar(Zi, lng, C, eta, kT, gb, gone, ef):
 
 
 @njit(cache=True, error_model="numpy")
-def _charge(eta, kT, gb, gone, ef, fixed, el_Z, el_N, el_lng, el_C):
+def _charge(eta, kT, gb, gone, ef, fixed, el_Z, el_N, el_lng, el_C, pl):
     """Free electrons per gram over rho (the fixed ones plus sum N zbar) and its eta-partial."""
     zsum = fixed
     zeta = 0.0
     for k in range(el_Z.size):
-        zb, dz = _zbar(el_Z[k], el_lng[k], el_C[k], eta, kT, gb, gone, ef)
+        zb, dz = _zbar(el_Z[k], el_lng[k], el_C[k], eta, kT, gb, gone, ef, pl[k])
         zsum += el_N[k] * zb
         zeta += el_N[k] * dz
     return zsum, zeta
+
+
+@njit(cache=True, error_model="numpy")
+def _fill_pl(T, el_Z, el_C, pl):
+    """pl[k, j] = the Planck-Larkin factor Phi_j = sum_{m >= j} phi(chi_m / kT) of stage j of element k
+    (physics.planck_larkin.stage_sums_point, row 0; a function of T alone, formed once per point)."""
+    kT = _K * T
+    for k in range(el_Z.size):
+        Zi = el_Z[k]
+        acc = 0.0
+        pl[k, Zi] = 0.0
+        for j in range(Zi - 1, -1, -1):
+            acc += planck_larkin((el_C[k, j + 1] - el_C[k, j]) / kT)[0]
+            pl[k, j] = acc
 
 
 @njit(cache=True, error_model="numpy")
@@ -112,7 +128,7 @@ def _rule(n_full, T):
 
 
 @njit(cache=True, error_model="numpy")
-def _start(lnn_full, lo, rho, T, fixed, el_Z, el_N, el_lng, el_C, kT, gb, gone, ef):
+def _start(lnn_full, lo, rho, T, fixed, el_Z, el_N, el_lng, el_C, kT, gb, gone, ef, pl):
     """A starting ln n_e: the same equation with non-degenerate, non-relativistic electrons,
     eta = ln(n_e / n_Q(T)), solved by cheap Newton steps (no table reads). Where that start would be
     degenerate (eta > -1) the classical eta is no guide: start from full ionization, as the numpy path does."""
@@ -122,7 +138,7 @@ def _start(lnn_full, lo, rho, T, fixed, el_Z, el_N, el_lng, el_C, kT, gb, gone, 
         eta = y - lnQ
         if eta > -1.0:
             return lnn_full
-        zsum, zeta = _charge(eta, kT, gb, gone, ef, fixed, el_Z, el_N, el_lng, el_C)
+        zsum, zeta = _charge(eta, kT, gb, gone, ef, fixed, el_Z, el_N, el_lng, el_C, pl)
         phi = y - math.log(rho * zsum)
         new = y - min(max(phi / (1.0 - zeta / zsum), -40.0), 40.0)
         new = min(max(new, lo), lnn_full)
@@ -133,20 +149,20 @@ def _start(lnn_full, lo, rho, T, fixed, el_Z, el_N, el_lng, el_C, kT, gb, gone, 
 
 
 @njit(cache=True, error_model="numpy")
-def _one(lnn_full, rho, T, fixed, el_Z, el_N, el_lng, el_C, tab, pairs, buf):
+def _one(lnn_full, rho, T, fixed, el_Z, el_N, el_lng, el_C, tab, pairs, buf, pl):
     """Root y = ln n_e at one point; returns (y, ok, fresh): fresh if buf holds the gas at exp(y)."""
     kT = _K * T
     gb, gone, ef = _rule(math.exp(lnn_full), T)
     hi = lnn_full
     lo = math.log(rho * fixed) if fixed > 0.0 else -math.inf
-    y = _start(lnn_full, lo, rho, T, fixed, el_Z, el_N, el_lng, el_C, kT, gb, gone, ef)
+    y = _start(lnn_full, lo, rho, T, fixed, el_Z, el_N, el_lng, el_C, kT, gb, gone, ef, pl)
     fresh = False
     lo_seen = False
     dx_old = math.inf
     for _ in range(_MAX_ITER):
         if not electron_point(math.exp(y), T, tab, buf):
             return y, False, False
-        zsum, zeta = _charge(buf[0], kT, gb, gone, ef, fixed, el_Z, el_N, el_lng, el_C)
+        zsum, zeta = _charge(buf[0], kT, gb, gone, ef, fixed, el_Z, el_N, el_lng, el_C, pl)
         n_free = rho * zsum
         phi = y - math.log(n_free)
         if abs(phi) < _TOL:
@@ -196,8 +212,11 @@ def _one(lnn_full, rho, T, fixed, el_Z, el_N, el_lng, el_C, tab, pairs, buf):
 @njit(cache=True, parallel=True, error_model="numpy")
 def _many(lnn_full, rho, T, fixed, el_Z, el_N, el_lng, el_C, tab, pairs, y, ok):
     buf = np.empty((rho.size, 12))
+    pl = np.empty((rho.size,) + el_C.shape)
     for i in prange(rho.size):
-        y[i], ok[i], _ = _one(lnn_full[i], rho[i], T[i], fixed, el_Z, el_N, el_lng, el_C, tab, pairs, buf[i])
+        _fill_pl(T[i], el_Z, el_C, pl[i])
+        y[i], ok[i], _ = _one(lnn_full[i], rho[i], T[i], fixed, el_Z, el_N, el_lng, el_C, tab, pairs, buf[i],
+                              pl[i])
 
 
 @njit(cache=True, error_model="numpy")
@@ -210,12 +229,13 @@ def _positrons_negligible(eta, T, n):
 
 
 @njit(cache=True, error_model="numpy")
-def _one_state(n_full, rho, T, fixed, el_Z, el_N, el_lng, el_C, tab, pairs, buf):
+def _one_state(n_full, rho, T, fixed, el_Z, el_N, el_lng, el_C, tab, pairs, buf, pl):
     """n_e at one point and the pair-free electron gas there (into buf); returns (n_e, ok).
 
     As matter.matter does it: the gas at full ionization first; where the Saha elements give up every
     electron there (ln n_full - ln n_free < 1e-13) n_e = n_full, else the root of :func:`_one`. ok is False
     where the numpy path must take the point (outside the table, below its lowest density, positrons).
+    ``pl``: the Planck-Larkin factors at this T (:func:`_fill_pl`).
     """
     ln0 = tab[7]
     lnn_full = math.log(n_full)
@@ -223,10 +243,10 @@ def _one_state(n_full, rho, T, fixed, el_Z, el_N, el_lng, el_C, tab, pairs, buf)
         return n_full, False
     kT = _K * T
     gb, gone, ef = _rule(n_full, T)
-    zsum, _ = _charge(buf[0], kT, gb, gone, ef, fixed, el_Z, el_N, el_lng, el_C)
+    zsum, _ = _charge(buf[0], kT, gb, gone, ef, fixed, el_Z, el_N, el_lng, el_C, pl)
     if not lnn_full - math.log(rho * zsum) > _TOL:
         return n_full, (not pairs) or _positrons_negligible(buf[0], T, n_full)
-    y, ok, fresh = _one(lnn_full, rho, T, fixed, el_Z, el_N, el_lng, el_C, tab, pairs, buf)
+    y, ok, fresh = _one(lnn_full, rho, T, fixed, el_Z, el_N, el_lng, el_C, tab, pairs, buf, pl)
     if not ok:
         return n_full, False
     n = math.exp(y)
@@ -243,10 +263,16 @@ def _many_state(n_full, rho, T, fixed, el_Z, el_N, el_lng, el_C, tab, pairs, n_e
     # points read neighbouring table cells, so each block stays contiguous)
     n = rho.size
     for c in prange(TASKS):
+        # the Planck-Larkin factors depend on T alone: formed again only where T changes (a map's rows share T)
+        pl = np.empty(el_C.shape)
+        last_T = math.nan
         for start in range(c * BLOCK, n, TASKS * BLOCK):
             for i in range(start, min(start + BLOCK, n)):
+                if T[i] != last_T:
+                    _fill_pl(T[i], el_Z, el_C, pl)
+                    last_T = T[i]
                 n_e[i], ok[i] = _one_state(n_full[i], rho[i], T[i], fixed, el_Z, el_N, el_lng, el_C, tab, pairs,
-                                           out[i])
+                                           out[i], pl)
 
 
 _TAB = None

@@ -469,7 +469,7 @@ def h2_bound_partition(T):
     Z_b(T) = sum over bound (v, J) of g (e^-E/T - (1 + y) e^-D0/T),  y = (D0 - E) / T  (E, D0 in kelvin)
            = e^-D0/T sum g (e^y - 1 - y)
 
-    The same convention as the atoms' bound states (:func:`thermoplane.physics.eos.equilibrium._planck_larkin`;
+    The same convention as the atoms' bound states (:func:`thermoplane.physics.planck_larkin.planck_larkin`;
     Planck 1924, Larkin 1960, Ebeling, Kraeft & Kremp 1976): of each level the sum keeps only what the
     scattering continuum of two H atoms cannot count as free, so a level near the dissociation limit fades
     out smoothly and, once kT exceeds D0, molecules are not kept alive by the ~2700 bound levels of the

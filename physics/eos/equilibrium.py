@@ -57,6 +57,7 @@ from numba import njit, prange
 
 from .. import constants as const
 from ..composition import Composition
+from ..planck_larkin import planck_larkin as _planck_larkin
 from . import jets as J
 from .coulomb_term import ion_coulomb
 from .electron_kernel import classical_point, electron_arrays, electron_point
@@ -89,31 +90,6 @@ def _h2_lnZ(lnT, tx, ty, t1, t2):
     if i > n - 2:
         i = n - 2
     return quintic(ty[i], t1[i], t2[i], ty[i + 1], t1[i + 1], t2[i + 1], (lnT - tx[i]) / h, h)
-
-
-@njit(cache=True, error_model="numpy")
-def _planck_larkin(x):
-    """phi(x) = ln(1 - (1 + x) e^-x) and its first two derivatives in ln T (x = chi / kT).
-
-    The Planck-Larkin bound-state sum keeps of each level only e^x - 1 - x = e^x (1 - (1 + x) e^-x):
-    the part a plasma cannot count as free (Planck 1924; Larkin 1960; Ebeling, Kraeft & Kremp 1976).
-    phi is 0 while kT << chi, so Saha comes back there; as kT grows past chi the bound state fades out
-    (e^x - 1 - x ~ x^2/2), so hot matter is fully ionized without a rule made by hand.
-    """
-    if x > 40.0:
-        e = (1.0 + x) * math.exp(-x)
-        # phi ~ -e, d/dlnT = -x dphi/dx with dphi/dx ~ x e^-x
-        d1 = -x * x * math.exp(-x)
-        return -e, d1, x * x * math.exp(-x) * (2.0 - x)
-    if x < 1e-4:
-        q = x * x * (0.5 - x / 3.0 + x * x / 8.0)
-    else:
-        q = -math.expm1(-x) - x * math.exp(-x)
-    q1 = x * math.exp(-x)               # dq/dx
-    q2 = (1.0 - x) * math.exp(-x)       # d2q/dx2
-    p1 = q1 / q                         # dphi/dx
-    p2 = q2 / q - p1 * p1               # d2phi/dx2
-    return math.log(q), -x * p1, x * p1 + x * x * p2
 
 
 @njit(cache=True, inline="always", error_model="numpy")
