@@ -16,10 +16,11 @@ calls per pixel of the N-pixel map.
 (c) bytes per composition change: on the wire (gzip) and as JSON [target <= 0.5 MB], and for a whole figure;
 (d) a change of shaded quantity and of a layer (cached physics).
 
-Run: python tests/benchmarks/bench_app.py [--repeat N] [--gunicorn] [--baseline REV]
+Run: python tests/benchmarks/bench_app.py [--repeat N] [--gunicorn] [--baseline REV] | [--stages]
 (--gunicorn: the Dockerfile's command, so the first map comes after the preload warm-up; --baseline REV: a second
 server runs git revision REV and every request alternates between the two, so that the comparison holds on a
-loaded machine: the baseline's first map compiles its kernels into .pytest_cache once, ~1-2 minutes)
+loaded machine: the baseline's first map compiles its kernels into .pytest_cache once, ~1-2 minutes;
+--stages: no server, the time of each stage of a map request in this process)
 """
 
 from __future__ import annotations
@@ -120,6 +121,95 @@ class Server:
         return time.perf_counter() - t0, r, server_cpu(self.proc.pid) - c0
 
 
+def stages(repeat: int) -> None:
+    """Where a map request's time goes, in this process (Flask test client, no HTTP): median wall ms of each
+    stage over ``repeat`` composition changes, full map and preview. Each stage is timed by wrapping the
+    function that does it (nested stages are indented and included in the one above)."""
+    import gzip
+    import json
+
+    import dash._callback as dash_callback
+
+    from thermoplane.app import compress, delta, figures
+    from thermoplane.app.callbacks import map as map_cb
+    from thermoplane.app.main import create_app
+    from thermoplane.app.state import DEFAULT_VIEW, view_to_controls
+    from thermoplane.physics import burning, contours, eos, neutrinos, plane
+
+    spent: dict[str, float] = {}
+
+    def wrap(module, name, label):
+        original = getattr(module, name)
+
+        def timed(*args, **kwargs):
+            t0 = time.perf_counter()
+            try:
+                return original(*args, **kwargs)
+            finally:
+                spent[label] = spent.get(label, 0.0) + time.perf_counter() - t0
+        setattr(module, name, timed)
+
+    order = []
+    for module, name, label in (
+            (plane, "_compute", "plane (equation of state and the fields kept)"),
+            (eos, "evaluate", "  physics.evaluate"),
+            (map_cb, "overlay_lines", "lines (and the layers they need)"),
+            (neutrinos, "epsilon_parts", "  neutrino losses"),
+            (burning, "epsilon", "  burning rates"),
+            (contours, "_column_crossings", "  compiled column passes"),
+            (map_cb, "_colour_range", "colour range"),
+            (figures, "plane_figure", "figure"),
+            (delta, "figure_update", "fingerprint and Patch"),
+            (dash_callback, "to_json", "Dash's JSON"),
+            (compress, "gzip_json", "gzip")):
+        wrap(module, name, label)
+        order.append(label)
+    app = create_app()
+    client = app.server.test_client()
+    controls = view_to_controls(DEFAULT_VIEW)
+    shape = [None]
+
+    def post(body):
+        r = client.post("/_dash-update-component", json=body, headers={"Accept-Encoding": "gzip"})
+        assert r.status_code == 200, r.status_code
+        data = r.get_data()
+        if r.headers.get("Content-Encoding") == "gzip":
+            data = gzip.decompress(data)
+        parts = response_parts(json.loads(data))
+        if parts.get("map-shape.data"):
+            shape[0] = parts["map-shape.data"]
+
+    def full(i):
+        X = round(0.70 - 0.003 * (i + 1), 6)
+        return map_request(app, {**controls, "X": X, "Y": round(0.98 - X, 6)}, "comp-X.value", shape=shape[0])
+
+    def preview(i):
+        X = round(0.60 - 0.003 * (i + 1), 6)
+        return map_request(app, {**controls, "Y": 0.28, "Z": 0.02, "zauto": ["auto"]}, "comp-drag.data",
+                           held=True, drag_value=X, shape=shape[0])
+
+    post(map_request(app, controls, "comp-X.value"))
+    for title, make in (("full map after a composition change", full), ("coarse preview", preview)):
+        for i in range(2):
+            post(make(100 + i))                       # warm: tables, compiled kernels
+        times: dict[str, list] = {}
+        for i in range(repeat):
+            body = make(i)
+            spent.clear()
+            c0, t0 = time.thread_time(), time.perf_counter()
+            post(body)
+            spent["request (this thread's CPU)"] = time.thread_time() - c0
+            spent["request"] = time.perf_counter() - t0
+            for k, v in spent.items():
+                times.setdefault(k, []).append(v)
+        print(f"{title}: median ms of {repeat}, in process")
+        for k in order + ["request (this thread's CPU)", "request"]:
+            if k in times:
+                print(f"    {k:48s} {1e3 * statistics.median(times[k]):7.1f}")
+        rest = [t - e for t, e in zip(times["request"], times["  physics.evaluate"])]
+        print(f"    {'request without physics.evaluate':48s} {1e3 * statistics.median(rest):7.1f}")
+
+
 def main() -> None:
     ap = argparse.ArgumentParser()
     ap.add_argument("--repeat", type=int, default=12)
@@ -128,7 +218,12 @@ def main() -> None:
     ap.add_argument("--baseline", metavar="REV",
                     help="also serve git revision REV and alternate every request between the two servers "
                          "(the ratio of the two is what a shared machine's load cannot skew)")
+    ap.add_argument("--stages", action="store_true",
+                    help="no server: where a map request's time goes, stage by stage, in this process")
     args = ap.parse_args()
+    if args.stages:
+        stages(args.repeat)
+        return
     from thermoplane.app.callbacks.map import PREVIEW_RESOLUTION
     from thermoplane.app.main import create_app
     from thermoplane.app.state import DEFAULT_VIEW, view_to_controls
