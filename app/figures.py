@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import functools
 from dataclasses import dataclass, field
 
 import numpy as np
@@ -141,12 +142,22 @@ def place_labels(lines, x_range, y_range, font: float, avoid=()) -> list[tuple[f
             out.append(None)
             continue
         best, best_cost = None, np.inf
+        last = idx.size - 1
         for frac in _CANDIDATES:
-            i = idx[int(frac * (idx.size - 1))]
-            fx, fy = (x[i] - x_range[0]) / wx, (y[i] - y_range[0]) / wy
+            i = idx[int(frac * last)]
+            fx, fy = (float(x[i]) - x_range[0]) / wx, (float(y[i]) - y_range[0]) / wy
             box = _label_box(fx, fy, line.label, font)
-            cost = sum(_overlap(box, b) for b in placed)
-            cost += 10 * (max(0.0, -box[0]) + max(0.0, box[2] - 1) + max(0.0, box[3] - 1) + max(0.0, -box[1]))
+            a0, a1, a2, a3 = box
+            # the overlaps with the boxes placed, summed in order (what sum(_overlap(box, b) for b in placed)
+            # gives, without a call per pair: ~1 ms a map)
+            cost = 0.0
+            for b0, b1, b2, b3 in placed:
+                dx = (a2 if a2 <= b2 else b2) - (a0 if a0 >= b0 else b0)
+                if dx > 0.0:
+                    dy = (a3 if a3 <= b3 else b3) - (a1 if a1 >= b1 else b1)
+                    if dy > 0.0:
+                        cost += dx * dy
+            cost += 10 * (max(0.0, -a0) + max(0.0, a2 - 1) + max(0.0, a3 - 1) + max(0.0, -a1))
             if cost < best_cost:
                 best, best_cost = (float(x[i]), float(y[i]), box), cost
             if cost == 0:
@@ -156,11 +167,18 @@ def place_labels(lines, x_range, y_range, font: float, avoid=()) -> list[tuple[f
     return out
 
 
+@functools.lru_cache(maxsize=64)
+def named_scale(name: str) -> tuple:
+    """plotly's colour scale ``name`` as ((position, colour), ...), looked up once (plotly's lookup builds
+    its table of every named scale on each call: ~0.3 ms, twice a map)."""
+    import plotly.colors as pc
+    return tuple((pos, colour) for pos, colour in pc.get_colorscale(name))
+
+
 def _scale_list(scale):
     """A colour scale as the list plotly.js draws ([[0, colour], ..., [1, colour]]) for a plotly name."""
     if isinstance(scale, str):
-        import plotly.colors as pc
-        return [list(pair) for pair in pc.get_colorscale(scale)]
+        return [list(pair) for pair in named_scale(scale)]
     return scale
 
 

@@ -51,10 +51,9 @@ ROBUST_PERCENTILES = (1.0, 99.0)
 
 def _centred_scale(name: str, lo: float, hi: float, centre: float) -> list:
     """A diverging colour scale stretched so that its middle colour sits at ``centre`` in [lo, hi]."""
-    import plotly.colors as pc
     f0 = min(max((centre - lo) / (hi - lo), 0.02), 0.98)
     out = []
-    for pos, colour in pc.get_colorscale(name):
+    for pos, colour in figures.named_scale(name):
         out.append([pos * 2 * f0 if pos <= 0.5 else f0 + (pos - 0.5) * 2 * (1 - f0), colour])
     return out
 
