@@ -41,7 +41,7 @@ from .electron_table import _merge, table_eta
 from .electron_fast import pair_free_state, pair_onset_state, pair_table_state, state_from_points
 from .electrons import _CN, ElectronGas, ElectronState
 from .ionization import ALL_DESTROYED_T, ELEMENTS, ionization_stages
-from .matter_kernel import FIELDS, matter_at_root
+from .matter_kernel import FIELDS, matter_at_root, metal_electrons_fixed
 from .saha_kernel import solve_saha_compiled, solve_saha_state
 from .thermo import Part
 
@@ -158,15 +158,31 @@ class MatterResult(NamedTuple):
     ion_He1: np.ndarray
     ion_He2: np.ndarray
     mean_Z: np.ndarray
+    metal_electrons: np.ndarray  # free electrons from elements heavier than He, per gram
 
 
-def _saha_elements(comp: Composition, ionization: str):
-    """Which elements get Saha stages: {Z: N_per_gram}, and electrons per gram of the rest."""
+#: How the metals (Z = 3..30) ionize under ionization="saha": "full" (always fully ionized, the default) or
+#: "saha" (their own Saha stages with the pressure-ionization rule, each stage destroyed at its own size).
+#: Not the default yet: the rule's pressure is left out of P (see physics.ionization), and the metals' own
+#: pressure-ionization bands break rho^2 (dE/drho)_T = P - T (dP/dT)_rho there (measured in the README).
+METAL_IONIZATION = "full"
+_METAL_CHOICES = ("full", "saha")
+
+
+def _saha_elements(comp: Composition, ionization: str, metals: str | None = None):
+    """Which elements get Saha stages: {Z: N_per_gram}, and electrons per gram of the rest.
+
+    H and He with ionization="saha"; the metals Li..Zn too when ``metals`` (default
+    :data:`METAL_IONIZATION`) is "saha"."""
+    metals = METAL_IONIZATION if metals is None else metals
+    if metals not in _METAL_CHOICES:
+        raise ValueError(f"metals must be one of {_METAL_CHOICES}, got {metals!r}")
+    top = max(ELEMENTS) if metals == "saha" else 2
     per_mass = comp.X / (comp.A * const.m_u)
     saha = {}
     fixed = 0.0
     for N, Z in zip(per_mass, comp.Z):
-        if ionization == "saha" and int(Z) in ELEMENTS and Z == int(Z):
+        if ionization == "saha" and Z == int(Z) and 1 <= int(Z) <= top:
             saha[int(Z)] = saha.get(int(Z), 0.0) + float(N)
         else:
             fixed += float(N * Z)
@@ -248,7 +264,7 @@ def _saha_density(n_full, r, t, saha, fixed, electrons, pairs):
 
 
 def matter(rho, T, comp: Composition, electrons: str, ionization: str, pairs: bool,
-           compiled: bool = True) -> MatterResult:
+           compiled: bool = True, metals: str | None = None) -> MatterResult:
     """Electrons + ions in ionization equilibrium at (rho, T), with exact derivatives.
 
     Parameters
@@ -268,11 +284,15 @@ def matter(rho, T, comp: Composition, electrons: str, ionization: str, pairs: bo
         (:func:`~thermoplane.physics.matter_kernel.matter_at_root`) where the compiled Saha pass solved the
         point (the default), or by the numpy passes of :func:`_post_root` everywhere (the reference of the
         tests; the same values to rounding).
+    metals : {"full", "saha"} or None
+        How the metals Li..Zn ionize with ionization="saha" (None: :data:`METAL_IONIZATION`): fully, or by
+        their own Saha stages (every stage of every metal, the pressure-ionization rule with each stage's
+        own size; the compiled passes sum only the stages within e^-40 of each element's largest).
     """
     shape = rho.shape
     r, t = rho.ravel(), T.ravel()
     pairs = bool(pairs) and electrons == "fermi"
-    saha, fixed = _saha_elements(comp, ionization)
+    saha, fixed = _saha_elements(comp, ionization, metals)
     N_full = float(np.sum(comp.X * comp.Z / (comp.A * const.m_u)))
     n_full = r * N_full
 
@@ -284,7 +304,6 @@ def matter(rho, T, comp: Composition, electrons: str, ionization: str, pairs: bo
         n_e, buf, ok = solve_saha_state(n_full, r, t, saha, fixed, ELEMENTS, pairs)
         rest = np.flatnonzero(~ok)
         if compiled:
-            assert max(saha) <= 2, "the compiled passes take H and He as Saha elements only"
             out = matter_at_root(r, t, n_full, n_e, buf, ok, comp, saha, fixed, ELEMENTS)
             # where every bound state is destroyed (T >= ALL_DESTROYED_T: most of the points with positrons)
             # the Saha equilibrium is full ionization exactly: the fully ionized passes, plus the energy of
@@ -322,7 +341,8 @@ def _result(fields, n_e, n_full, shape) -> MatterResult:
     return MatterResult(part=part, P_e=rs(fields["P_e"]), P_ion=rs(fields["P_ion"]), eta=rs(fields["eta"]),
                         n_net=rs(n_e), n_minus=rs(fields["n_minus"]), n_plus=rs(fields["n_plus"]),
                         n_full=rs(n_full), ion_H=rs(fields["ion_H"]), ion_He1=rs(fields["ion_He1"]),
-                        ion_He2=rs(fields["ion_He2"]), mean_Z=rs(fields["mean_Z"]))
+                        ion_He2=rs(fields["ion_He2"]), mean_Z=rs(fields["mean_Z"]),
+                        metal_electrons=rs(fields["metal_electrons"]))
 
 
 def _post_root(r, t, n_full, n, es: ElectronState, comp: Composition, saha, fixed) -> dict:
@@ -410,5 +430,7 @@ def _post_root(r, t, n_full, n, es: ElectronState, comp: Composition, saha, fixe
     fields.update(P_e=P_e, P_ion=P_ion, eta=eta, n_minus=gas.n_minus, n_plus=gas.n_plus,
                   ion_H=stages[1].f[1] if 1 in stages else one,
                   ion_He1=(stages[2].f[1] + stages[2].f[2]) if 2 in stages else one,
-                  ion_He2=stages[2].f[2] if 2 in stages else one, mean_Z=n_free / (r * N_nuc))
+                  ion_He2=stages[2].f[2] if 2 in stages else one, mean_Z=n_free / (r * N_nuc),
+                  metal_electrons=metal_electrons_fixed(comp, saha) + sum(saha[z] * stages[z].mean_charge
+                                                                          for z in saha if z > 2) + 0.0 * t)
     return fields
