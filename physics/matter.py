@@ -200,6 +200,38 @@ def _stages(saha, eta, T, n_full):
     return {z: ionization_stages(ELEMENTS[z], eta, T, n_full) for z in saha}
 
 
+class _MeanCharge:
+    """The mean charge of each Saha element and its eta-partial as functions of eta at fixed (rho, T), for the
+    numpy root: ln q_j = a_j - j eta with a_j = ln g_j + ln w_j - C_j / kT formed once (w depends on rho and T
+    only), one 2-d pass per element and call (the same values as ionization_stages' f_j, to rounding)."""
+
+    def __init__(self, saha, T, n_full):
+        self.terms = {}
+        zero = np.zeros_like(T)
+        for z in saha:
+            st = ionization_stages(ELEMENTS[z], zero, T, n_full)
+            kT = const.k_B * T
+            a = np.array([np.log(g) + lw - C / kT for g, lw, C in
+                          zip(ELEMENTS[z].weights, st.ln_w, st.cumulative)])
+            self.terms[z] = (a, np.arange(z + 1.0)[:, None])
+
+    def subset(self, keep):
+        out = _MeanCharge.__new__(_MeanCharge)
+        out.terms = {z: (a[:, keep], j) for z, (a, j) in self.terms.items()}
+        return out
+
+    def __call__(self, z, eta):
+        a, j = self.terms[z]
+        lq = a - j * eta
+        t = np.argmax(lq, axis=0)
+        top = np.take_along_axis(lq, t[None], axis=0)
+        q = np.exp(lq - top)
+        dj = j - t
+        s0 = q.sum(axis=0)
+        m = (dj * q).sum(axis=0) / s0
+        return t + m, -((dj * dj * q).sum(axis=0) / s0 - m * m)
+
+
 def _solve_saha(n_full, rho, T, saha, fixed, electrons, pairs):
     """ln n_e from ln n_e = ln n_free(eta(n_e, T)) where ionization is incomplete (1-D arrays).
 
@@ -213,16 +245,24 @@ def _solve_saha(n_full, rho, T, saha, fixed, electrons, pairs):
     lo = np.log(rho * fixed) if fixed > 0 else np.full_like(y, -np.inf)
     active = np.arange(y.size)
     dx_old = np.full(y.size, np.inf)
+    metals = _MeanCharge(saha, T, n_full) if max(saha) > 2 else None
     for _ in range(_MAX_ITER):
         if active.size == 0:
             break
         ya = y[active]
         eta, deta_dn = _eta_at(np.exp(ya), T[active], electrons, pairs)
-        st = _stages(saha, eta, T[active], n_full[active])
-        # n_free and its eta-partial only, in the arithmetic order of _free_electrons (same values)
         ra = rho[active]
-        n_free = ra * (fixed + sum(saha[z] * st[z].mean_charge for z in saha))
-        nf_eta = ra * sum(saha[z] * sum(j * st[z].f_eta[j] for j in range(len(st[z].f))) for z in saha)
+        if metals is not None:
+            # many stages: the mean charges from ln q_j formed once (_MeanCharge), not every stage's partials
+            mc = metals.subset(active)
+            zs = {z: mc(z, eta) for z in saha}
+            n_free = ra * (fixed + sum(saha[z] * zs[z][0] for z in saha))
+            nf_eta = ra * sum(saha[z] * zs[z][1] for z in saha)
+        else:
+            st = _stages(saha, eta, T[active], n_full[active])
+            # n_free and its eta-partial only, in the arithmetic order of _free_electrons (same values)
+            n_free = ra * (fixed + sum(saha[z] * st[z].mean_charge for z in saha))
+            nf_eta = ra * sum(saha[z] * sum(j * st[z].f_eta[j] for j in range(len(st[z].f))) for z in saha)
         phi = ya - np.log(n_free)
         slope = 1.0 - nf_eta / n_free * deta_dn * np.exp(ya)
         done = np.abs(phi) < _NEWTON_TOL
@@ -301,7 +341,10 @@ def matter(rho, T, comp: Composition, electrons: str, ionization: str, pairs: bo
     #    pair-free table holds the point, and everything after the root in a second compiled pass
     #    (physics.matter_kernel.matter_at_root); the numpy passes for the rest (positrons, outside the table)
     if saha and electrons == "fermi":
-        n_e, buf, ok = solve_saha_state(n_full, r, t, saha, fixed, ELEMENTS, pairs)
+        # with metals among the Saha elements, cool matter can hold fewer free electrons than the table's
+        # lowest density: the compiled reader's Boltzmann continuation takes those roots
+        below = max(saha) > 2
+        n_e, buf, ok = solve_saha_state(n_full, r, t, saha, fixed, ELEMENTS, pairs, below_table=below)
         rest = np.flatnonzero(~ok)
         if compiled:
             out = matter_at_root(r, t, n_full, n_e, buf, ok, comp, saha, fixed, ELEMENTS)

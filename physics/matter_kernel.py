@@ -124,13 +124,36 @@ def _stages(e, Zi, lng, C, r3, eta, i_kT, i_T, s_rho, s_T, E_F, E_F_ln, st):
     Each bound stage has its own packing r3_j s_rho + s_T. f_j = q_j / sum q with q_j = exp(ln q_j - max ln q);
     stages that saha_kernel.keep_stage rejects get f_j = 0 (no exp; the caller skips them).
     Arrays are indexed in place, never sliced (no array views per point)."""
+    # pass 1: ln q_j of every stage (the rule's G alone, no partials), its largest, and the largest ion's
     top = -math.inf
     top_ion = -math.inf
     t = 0
     for j in range(Zi + 1):
+        lnw = 0.0
+        if j < Zi:                     # the bare nucleus is never destroyed
+            s_j = r3[e, j] * s_rho
+            if s_j + s_T > S_ONSET:
+                G, G_r, G_t, G_rt, G_tt, gone = _rule_of_stage(s_j, s_T)
+                lnw = _DESTROYED if gone else -G * (C[e, Zi] - C[e, j] + (Zi - j) * E_F) * i_kT
+        lq = lng[e, j] + lnw - j * eta - C[e, j] * i_kT
+        st[e, _F, j] = lq                                  # ln q_j for now
+        if lq > top:
+            top = lq
+            t = j
+        if j >= 1 and lq > top_ion:
+            top_ion = lq
+    # pass 2: the stages kept (saha_kernel.keep_stage): q_j and the rule's ln w_j, E_w,j with partials
+    tot = 0.0
+    for j in range(Zi + 1):
+        lq = st[e, _F, j]
+        if not keep_stage(j, lq, top, t, top_ion):
+            st[e, _F, j] = 0.0
+            continue
+        q = _exp(lq - top)
+        st[e, _F, j] = q
+        tot += q
         c_kT = C[e, j] * i_kT
-        if j == Zi:                    # the bare nucleus is never destroyed
-            lnw = 0.0
+        if j == Zi:
             w_T = 0.0
             st[e, _WLN, j] = 0.0
             st[e, _EW, j] = 0.0
@@ -141,7 +164,6 @@ def _stages(e, Zi, lng, C, r3, eta, i_kT, i_T, s_rho, s_T, E_F, E_F_ln, st):
             # F_w = G D (ionization.py): D = (C_Z - C_j) + (Z - j) E_F
             D = C[e, Zi] - C[e, j] + (Zi - j) * E_F
             D_r = (Zi - j) * E_F_ln
-            lnw = _DESTROYED if gone else -G * D * i_kT
             w_T = (G - G_t) * D * (i_kT * i_T)
             st[e, _WLN, j] = -(G_r * D + G * D_r) * i_kT
             st[e, _EW, j] = D * (G - G_t)
@@ -150,19 +172,6 @@ def _stages(e, Zi, lng, C, r3, eta, i_kT, i_T, s_rho, s_T, E_F, E_F_ln, st):
         st[e, _WT, j] = w_T
         st[e, _FT, j] = c_kT * i_T + w_T          # d ln q_j / dT for now
         st[e, _LNFGW, j] = -j * eta - c_kT                 # ln_f_gw + ln sum q, for now
-        lq = lng[e, j] + lnw - j * eta - c_kT
-        st[e, _F, j] = lq                                  # ln q_j for now
-        if lq > top:
-            top = lq
-            t = j
-        if j >= 1 and lq > top_ion:
-            top_ion = lq
-    tot = 0.0
-    for j in range(Zi + 1):
-        lq = st[e, _F, j]
-        q = _exp(lq - top) if keep_stage(j, lq, top, t, top_ion) else 0.0
-        st[e, _F, j] = q
-        tot += q
     ln_sum = top + math.log(tot)
     i_tot = 1.0 / tot
     m_eta = 0.0
@@ -171,9 +180,9 @@ def _stages(e, Zi, lng, C, r3, eta, i_kT, i_T, s_rho, s_T, E_F, E_F_ln, st):
     for j in range(Zi + 1):
         f = st[e, _F, j] * i_tot
         st[e, _F, j] = f
-        st[e, _LNFGW, j] -= ln_sum
         if f == 0.0:
             continue
+        st[e, _LNFGW, j] -= ln_sum
         m_eta += f * -float(j)
         m_T += f * st[e, _FT, j]
         m_ln += f * st[e, _WLN, j]
