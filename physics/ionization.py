@@ -1,5 +1,5 @@
-"""Ionization of hydrogen and helium: Saha equilibrium with the electron
-chemical potential, and a pressure-ionization rule.
+"""Ionization of hydrogen, helium and the metals: Saha equilibrium with the electron chemical potential,
+and a pressure-ionization rule.
 
 The question this module answers: at given electron degeneracy eta,
 temperature T and density, what fraction of each element sits in each
@@ -57,8 +57,16 @@ ionization) is left out, so the pressure rises monotonically: inside the band
 rho^2 (dE/drho)_T = P - T (dP/dT)_rho holds only approximately (outside it,
 exactly).
 
-Metals are treated as fully ionized at every (rho, T). Only ground states
-are counted (no excited levels, no molecules, no H-).
+Metals (Li..Zn, every stage from the NIST compilation in :mod:`thermoplane.physics.eos.atomic_data`) follow
+the same equations when the equation of state asks for them (``physics.matter.METAL_IONIZATION``, default
+"full": metals fully ionized). Their stages are destroyed by the same rule, with one change (ours): stage j
+packs spheres of its own size, s_j = (r_j / a_0)^3 s_rho + s_T, r_j = (j + 1) (Ry / chi_j) a_0 (the
+hydrogenic orbit of the outermost electron, :func:`stage_radius3`), so that inner shells survive to
+their own densities (the K shells of C and O to ~1e3-1e4 g cm^-3) instead of going with hydrogen at
+~1 g cm^-3. H and He keep a_0 for every bound stage. The rule's pressure is left out for the metals too,
+so rho^2 (dE/drho)_T = P - T (dP/dT)_rho fails inside each metal stage's band where that stage is
+populated (measured in the README); it is why the metals stay fully ionized by default.
+Only ground states are counted (no excited levels, no molecules, no H-).
 """
 
 from __future__ import annotations
