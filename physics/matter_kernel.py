@@ -54,7 +54,7 @@ _H2 = const.h**2
 _LAM_DEN = 2.0 * np.pi * const.m_u * const.k_B
 _DESTROYED = -1.0e300
 #: rows of the per-element scratch: stage fractions and what the ion sums need of them
-_F, _LNFGW, _FETA, _FT, _FLN, _WT, _WLN, _EW, _ET, _ELN = range(10)
+_F, _LNFGW, _FETA, _FT, _FLN, _WT, _WLN, _EW, _ET, _ELN, _WIN = range(11)
 #: interleaved tasks and their blocks of points in the parallel loop (the points handed back cluster in the
 #: hot rows of a map: contiguous shares per thread would be unequal)
 TASKS = 64
@@ -142,13 +142,18 @@ def _stages(e, Zi, lng, C, r3, eta, i_kT, i_T, s_rho, s_T, E_F, E_F_ln, st):
             t = j
         if j >= 1 and lq > top_ion:
             top_ion = lq
-    # pass 2: the stages kept (saha_kernel.keep_stage): q_j and the rule's ln w_j, E_w,j with partials
+    # pass 2: the stages kept (saha_kernel.keep_stage): q_j and the rule's ln w_j, E_w,j with partials; the
+    # first and last kept (row _WIN) bound every later loop over the stages
     tot = 0.0
+    lo = Zi
+    hi = 0
     for j in range(Zi + 1):
         lq = st[e, _F, j]
         if not keep_stage(j, lq, top, t, top_ion):
             st[e, _F, j] = 0.0
             continue
+        lo = min(lo, j)
+        hi = max(hi, j)
         q = _exp(lq - top)
         st[e, _F, j] = q
         tot += q
@@ -172,12 +177,14 @@ def _stages(e, Zi, lng, C, r3, eta, i_kT, i_T, s_rho, s_T, E_F, E_F_ln, st):
         st[e, _WT, j] = w_T
         st[e, _FT, j] = c_kT * i_T + w_T          # d ln q_j / dT for now
         st[e, _LNFGW, j] = -j * eta - c_kT                 # ln_f_gw + ln sum q, for now
+    st[e, _WIN, 0] = lo
+    st[e, _WIN, 1] = hi
     ln_sum = top + math.log(tot)
     i_tot = 1.0 / tot
     m_eta = 0.0
     m_T = 0.0
     m_ln = 0.0
-    for j in range(Zi + 1):
+    for j in range(lo, hi + 1):
         f = st[e, _F, j] * i_tot
         st[e, _F, j] = f
         if f == 0.0:
@@ -190,12 +197,9 @@ def _stages(e, Zi, lng, C, r3, eta, i_kT, i_T, s_rho, s_T, E_F, E_F_ln, st):
     z_eta = 0.0
     z_T = 0.0
     z_ln = 0.0
-    for j in range(Zi + 1):
+    for j in range(lo, hi + 1):
         f = st[e, _F, j]
-        if f == 0.0:
-            st[e, _FETA, j] = 0.0
-            st[e, _FT, j] = 0.0
-            st[e, _FLN, j] = 0.0
+        if f == 0.0:                   # not kept, or below the smallest double: its rows are never read
             continue
         st[e, _FETA, j] = f * (-float(j) - m_eta)
         st[e, _FT, j] = f * (st[e, _FT, j] - m_T)
@@ -300,7 +304,7 @@ def _point(rho, T, n_full, n, buf, i, fixed, fixed_metal, el_Z, el_N, el_lng, el
         if e < 0:
             Si += N_i * k * (2.5 - ln_nL3)
             continue
-        for j in range(el_Z[e] + 1):
+        for j in range(int(st[e, _WIN, 0]), int(st[e, _WIN, 1]) + 1):
             f = st[e, _F, j]
             if f == 0.0:               # outside the window (WINDOW_CUT): every term below is 0
                 continue
@@ -359,7 +363,7 @@ def _many(rho, T, n_full, n_e, buf, ok, fixed, fixed_metal, el_Z, el_N, el_lng, 
           ln_xn_per_rho, out):
     n = rho.size
     for c in prange(TASKS):
-        st = np.empty((el_Z.size, 10, el_C.shape[1]))          # one scratch per task, reused point after point
+        st = np.empty((el_Z.size, 11, el_C.shape[1]))          # one scratch per task, reused point after point
         for start in range(c * BLOCK, n, TASKS * BLOCK):
             for i in range(start, min(start + BLOCK, n)):
                 if ok[i]:
