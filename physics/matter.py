@@ -263,8 +263,12 @@ def _solve_saha(n_full, rho, T, saha, fixed, electrons, pairs):
             # n_free and its eta-partial only, in the arithmetic order of _free_electrons (same values)
             n_free = ra * (fixed + sum(saha[z] * st[z].mean_charge for z in saha))
             nf_eta = ra * sum(saha[z] * sum(j * st[z].f_eta[j] for j in range(len(st[z].f))) for z in saha)
-        phi = ya - np.log(n_free)
-        slope = 1.0 - nf_eta / n_free * deta_dn * np.exp(ya)
+        # where every ion's weight is below the smallest double (very cold, degenerate at this n_e: T < 1e3 K
+        # near 1 g cm^-3) n_free is 0: phi is +inf, the step the largest allowed (40 in ln n_e) downwards
+        some = n_free > 0.0
+        safe = np.where(some, n_free, 1.0)
+        phi = np.where(some, ya - np.log(safe), np.inf)
+        slope = np.where(some, 1.0 - nf_eta / safe * deta_dn * np.exp(ya), 1.0)
         done = np.abs(phi) < _NEWTON_TOL
         pos = phi > 0
         hi[active] = np.where(pos, ya, hi[active])
@@ -287,7 +291,8 @@ def _saha_density(n_full, r, t, saha, fixed, electrons, pairs):
     n_e = n_full.copy()
     st_full = electrons_at(n_full, t, electrons, pairs)
     n_free0 = _free_electrons(_stages(saha, st_full.eta, t, n_full), saha, fixed, r)[0]
-    incomplete = np.flatnonzero(np.log(n_full) - np.log(n_free0) > _NEWTON_TOL)
+    with np.errstate(divide="ignore"):                 # n_free0 = 0: every ion below the smallest double
+        incomplete = np.flatnonzero(np.log(n_full) - np.log(n_free0) > _NEWTON_TOL)
     if incomplete.size == 0:
         return n_e, st_full
     todo = incomplete

@@ -169,3 +169,15 @@ def test_temperature_identity_and_positive_entropy_with_metals(comp, monkeypatch
     # central differences resolve all but the steepest points (cold pressure ionization: f of a stage drops
     # within ~1e-3 dex there)
     assert np.mean(rel < 1e-4) > 0.98
+
+
+@pytest.mark.parametrize("metals", ["full", "saha"])
+def test_cold_dense_matter_below_the_table_has_a_root(metals, monkeypatch):
+    # at 400 K near 1 g cm^-3 (below the electron table, the numpy root) every ion of pure H or He, or of C/O
+    # with metals by Saha, weighs less than the smallest double at full ionization: the root steps down
+    # instead of dividing by n_free = 0 (before: ValueError "n_net must be finite")
+    monkeypatch.setattr(M, "METAL_IONIZATION", metals)
+    rho = np.array([0.9, 1.0, 1.1])
+    for comp in (ph.Composition({"H-1": 1.0}), ph.Composition({"He-4": 1.0}), CO):
+        s = ph.evaluate(rho, np.full(3, 400.0), comp)
+        assert np.all(np.isfinite(s.P)) and np.all(np.isfinite(s.gamma1)) and np.all(s.mean_Z >= 0)
