@@ -1,5 +1,5 @@
-"""Ionization of hydrogen and helium: Saha equilibrium with the electron
-chemical potential, and a pressure-ionization rule.
+"""Ionization of hydrogen, helium and the metals: Saha equilibrium with the electron chemical potential,
+and a pressure-ionization rule.
 
 The question this module answers: at given electron degeneracy eta,
 temperature T and density, what fraction of each element sits in each
@@ -67,8 +67,16 @@ while kT << chi; as kT grows past chi the bound state fades out, so hot dense
 hydrogen (a Sun-like interior) is ionized where ground-state Saha alone left
 a few per cent neutral.
 
-Metals are treated as fully ionized at every (rho, T). Only ground states
-are counted (no excited levels, no molecules, no H-).
+Metals (Li..Zn, every stage from the NIST compilation in :mod:`thermoplane.physics.eos.atomic_data`) follow
+the same equations when the equation of state asks for them (``physics.matter.METAL_IONIZATION``, default
+"full": metals fully ionized). Their stages are destroyed by the same rule, with one change (ours): stage j
+packs spheres of its own size, s_j = (r_j / a_0)^3 s_rho + s_T, r_j = (j + 1) (Ry / chi_j) a_0 (the
+hydrogenic orbit of the outermost electron, :func:`stage_radius3`), so that inner shells survive to
+their own densities (the K shells of C and O to ~1e3-1e4 g cm^-3) instead of going with hydrogen at
+~1 g cm^-3. H and He keep a_0 for every bound stage. The rule's pressure is left out for the metals too,
+so rho^2 (dE/drho)_T = P - T (dP/dT)_rho fails inside each metal stage's band where that stage is
+populated (measured in the README); it is why the metals stay fully ionized by default.
+Only ground states are counted (no excited levels, no molecules, no H-).
 """
 
 from __future__ import annotations
@@ -78,9 +86,10 @@ from dataclasses import dataclass
 import numpy as np
 
 from . import constants as const
+from .eos.atomic_data import Z_MAX, ionization_data
 from .planck_larkin import stage_sums
 
-__all__ = ["Element", "ELEMENTS", "BOHR_RADIUS", "ionization_stages", "StageState", "S_ONSET", "S_COMPLETE",
+__all__ = ["Element", "ELEMENTS", "BOHR_RADIUS", "RYDBERG_EV", "stage_radius3", "ionization_stages", "StageState", "S_ONSET", "S_COMPLETE",
            "ALL_DESTROYED_T"]
 
 #: Bohr radius, cm (from scipy.constants via hbar^2 / (m_e e^2))
@@ -89,24 +98,67 @@ BOHR_RADIUS = const.hbar**2 / (const.m_e * const.e_esu**2)
 
 @dataclass(frozen=True)
 class Element:
-    """An element treated with Saha ionization: ground-state data of its stages."""
+    """An element treated with Saha ionization: ground-state data of its stages.
+
+    ``radius3[j]`` is (r_j / a_0)^3, the cube of the size of stage j's outermost bound electron in Bohr radii,
+    which scales the packing of the pressure-ionization rule for that stage (1 for H and He; for metals see
+    :func:`stage_radius3`); the bare nucleus's entry is unused.
+    """
 
     Z: int
     weights: tuple          # g_j, j = 0..Z
     energies_eV: tuple      # chi_j, ionization energy of stage j -> j+1, eV
+    radius3: tuple = ()     # (r_j / a_0)^3, j = 0..Z; empty means 1 for every stage
 
     @property
     def cumulative_erg(self) -> np.ndarray:
         return np.concatenate([[0.0], np.cumsum(self.energies_eV)]) * const.eV
 
+    @property
+    def radius3_array(self) -> np.ndarray:
+        return np.array(self.radius3, dtype=float) if self.radius3 else np.ones(self.Z + 1)
+
+
+#: Rydberg energy, eV (from scipy.constants via m_e e^4 / (2 hbar^2))
+RYDBERG_EV = const.m_e * const.e_esu**4 / (2.0 * const.hbar**2) / const.eV
+
+
+def stage_radius3(energies_eV) -> np.ndarray:
+    """(r_j / a_0)^3 of each stage of a metal from its ionization energies (bare nucleus: 0).
+
+    The outermost electron of the ion of charge j sees the charge j + 1; written as a hydrogenic orbit with
+    the effective principal quantum number n*_j defined by chi_j = (j + 1)^2 Ry / n*_j^2 (the quantum-defect
+    convention, e.g. Bethe & Salpeter 1957, Quantum Mechanics of One- and Two-Electron Atoms, sec. 3; from
+    memory), its radius is the Bohr-model n*^2 a_0 / (j + 1):
+
+        r_j = (j + 1) (Ry / chi_j) a_0.
+
+    This gives a_0 for H, 1.2 a_0 for neutral C, 1.7 a_0 for neutral Fe and a_0 / 26 for the H-like Fe ion.
+    Using this size for the stage's destruction is our own choice (an estimate, not a fitted radius): it
+    makes each shell come apart where its own orbits overlap the volume per electron, K shells of C and O at
+    ~1e3-1e4 g cm^-3 rather than with hydrogen at ~1 g cm^-3.
+    """
+    chi = np.asarray(energies_eV, dtype=float)
+    r = (np.arange(chi.size) + 1.0) * RYDBERG_EV / chi
+    return np.concatenate([r**3, [0.0]])
+
+
+def _metal(Z: int) -> Element:
+    chi, g = ionization_data(Z)
+    return Element(Z=Z, weights=tuple(float(x) for x in g), energies_eV=tuple(float(x) for x in chi),
+                   radius3=tuple(float(x) for x in stage_radius3(chi)))
+
 
 # Ionization energies: NIST Atomic Spectra Database (H 13.598 eV; He 24.587, 54.418 eV).
-# Ground-state weights: H (2, 1); He (1, 2, 1).
+# Ground-state weights: H (2, 1); He (1, 2, 1). H and He keep the Bohr radius for every bound stage (the rule
+# as it was built for them). Metals Li..Zn (Z = 3..30): every stage from the compilation of
+# :mod:`thermoplane.physics.eos.atomic_data` (NIST ASD ionization energies and ground levels), each stage
+# destroyed at its own size (:func:`stage_radius3`). Heavier nuclides stay fully ionized.
 ELEMENTS = {
     1: Element(Z=1, weights=(2.0, 1.0), energies_eV=(13.598434,)),
     2: Element(Z=2, weights=(1.0, 2.0, 1.0), energies_eV=(24.587389, 54.417765)),
+    **{Z: _metal(Z) for Z in range(3, Z_MAX + 1)},
 }
-
 
 
 @dataclass
@@ -180,6 +232,26 @@ def _smooth_step(s: np.ndarray):
     return b, db, d2b
 
 
+def _rule_of_stage(s_rho, s_T):
+    """G = b / (1 - b) of one stage at packing s = s_rho + s_T with its partials in ln rho and ln T
+    (G_r, G_t, G_rt, G_tt), and the mask where the stage is gone (b = 1)."""
+    s = s_rho + s_T
+    b, db, d2b = _smooth_step(s)
+    a_rho, a_T = s_rho / s, s_T / s                     # d ln s / d ln rho and d ln s / d ln T over 4
+    # G runs from 0 to infinity across the band: beyond it the bound state is gone. Its partials in u = ln s,
+    # then in ln rho (u_r = a_rho) and ln T (u_t = 4 a_T), first and second
+    gone = b >= 1.0 - 1e-12
+    om = np.where(gone, 1.0, 1.0 - b)
+    G = np.where(gone, 0.0, b / om)
+    G_u = np.where(gone, 0.0, db / om**2)
+    G_uu = np.where(gone, 0.0, d2b / om**2 + 2.0 * db**2 / om**3)
+    u_r, u_t = a_rho, 4.0 * a_T
+    G_r, G_t = G_u * u_r, G_u * u_t
+    G_rt = G_uu * u_r * u_t - G_u * a_rho * u_t            # d2u / dln rho dln T = -4 a_rho a_T
+    G_tt = G_uu * u_t**2 + 4.0 * G_u * u_t * a_rho          # d2u / dln T^2 = 16 a_T a_rho
+    return G, G_r, G_t, G_rt, G_tt, gone
+
+
 def fermi_energy(n_e: np.ndarray):
     """Kinetic Fermi energy of an electron gas of density n_e (cm^-3) at T = 0, with relativity, and its
     derivative in ln n_e: E_F = m c^2 (sqrt(1 + x^2) - 1), x = hbar (3 pi^2 n_e)^(1/3) / (m c)."""
@@ -219,38 +291,27 @@ def ionization_stages(element: Element, eta: np.ndarray, T: np.ndarray, n_e_full
     C = element.cumulative_erg
     Z = element.Z
     n_stages = Z + 1
+    r3 = element.radius3_array
     shape = np.broadcast(eta, T, n_e_full).shape
     zero = np.zeros(shape)
     if pressure_ionization:
-        # packing of Bohr spheres, plus a thermal term that completes ionization above ~2e8 K, where
-        # the ground-state-only Saha equation would recombine H in the dense electron-positron plasma
+        # packing of the stage's own spheres (Bohr spheres for H and He), plus a thermal term that completes
+        # ionization above ~2e8 K, where the ground-state-only Saha equation would recombine H in the dense
+        # electron-positron plasma
         s_rho = (4.0 * np.pi / 3.0) * n_e_full * BOHR_RADIUS**3
-        s_T = (T / THERMAL_DESTRUCTION_T) ** 4
-        s = s_rho + s_T
-        b, db, d2b = _smooth_step(s)
-        a_rho, a_T = s_rho / s, s_T / s                     # d ln s / d ln rho and d ln s / d ln T over 4
+        s_T = (T / THERMAL_DESTRUCTION_T) ** 4 + zero
         E_F, E_F_ln = fermi_energy(n_e_full)
     else:
-        b = db = d2b = a_rho = a_T = E_F = E_F_ln = zero
-    # G = b / (1 - b) runs from 0 to infinity across the band: beyond it the bound states are gone. Its
-    # partials in u = ln s, then in ln rho (u_r = a_rho) and ln T (u_t = 4 a_T), first and second
-    gone = b >= 1.0 - 1e-12
-    om = np.where(gone, 1.0, 1.0 - b)
-    G = np.where(gone, 0.0, b / om)
-    G_u = np.where(gone, 0.0, db / om**2)
-    G_uu = np.where(gone, 0.0, d2b / om**2 + 2.0 * db**2 / om**3)
-    u_r, u_t = a_rho, 4.0 * a_T
-    G_r, G_t = G_u * u_r, G_u * u_t
-    G_rt = G_uu * u_r * u_t - G_u * a_rho * u_t            # d2u / dln rho dln T = -4 a_rho a_T
-    G_tt = G_uu * u_t**2 + 4.0 * G_u * u_t * a_rho          # d2u / dln T^2 = 16 a_T a_rho
+        E_F = E_F_ln = zero
     # the Planck-Larkin factor of every bound stage (physics.planck_larkin): Phi_j(T) and its ln T partials
     pl = stage_sums(np.broadcast_to(T, shape), Z, C) if pressure_ionization else np.zeros((3, n_stages) + shape)
     ln_q, ln_w, w_T, w_ln, e_w, e_T, e_ln = [], [], [], [], [], [], []
     for j in range(n_stages):
-        if j == Z:                     # the bare nucleus is never destroyed
+        if j == Z or not pressure_ionization:     # the bare nucleus is never destroyed
             for lst in (ln_w, w_T, w_ln, e_w, e_T, e_ln):
                 lst.append(zero)
         else:
+            G, G_r, G_t, G_rt, G_tt, gone = _rule_of_stage(r3[j] * s_rho, s_T)
             D = C[Z] - C[j] + (Z - j) * E_F                      # F_w = G D - kT Phi_j, erg per particle
             D_r = (Z - j) * E_F_ln
             p0, p1, p2 = pl[0, j], pl[1, j], pl[2, j]

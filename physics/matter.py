@@ -41,7 +41,7 @@ from .electron_table import _merge, table_eta
 from .electron_fast import pair_free_state, pair_onset_state, pair_table_state, state_from_points
 from .electrons import _CN, ElectronGas, ElectronState
 from .ionization import ALL_DESTROYED_T, ELEMENTS, ionization_stages
-from .matter_kernel import FIELDS, matter_at_root
+from .matter_kernel import FIELDS, matter_at_root, metal_electrons_fixed
 from .saha_kernel import solve_saha_compiled, solve_saha_state
 from .thermo import Part
 
@@ -158,15 +158,31 @@ class MatterResult(NamedTuple):
     ion_He1: np.ndarray
     ion_He2: np.ndarray
     mean_Z: np.ndarray
+    metal_electrons: np.ndarray  # free electrons from elements heavier than He, per gram
 
 
-def _saha_elements(comp: Composition, ionization: str):
-    """Which elements get Saha stages: {Z: N_per_gram}, and electrons per gram of the rest."""
+#: How the metals (Z = 3..30) ionize under ionization="saha": "full" (always fully ionized, the default) or
+#: "saha" (their own Saha stages with the pressure-ionization rule, each stage destroyed at its own size).
+#: Not the default yet: the rule's pressure is left out of P (see physics.ionization), and the metals' own
+#: pressure-ionization bands break rho^2 (dE/drho)_T = P - T (dP/dT)_rho there (measured in the README).
+METAL_IONIZATION = "full"
+_METAL_CHOICES = ("full", "saha")
+
+
+def _saha_elements(comp: Composition, ionization: str, metals: str | None = None):
+    """Which elements get Saha stages: {Z: N_per_gram}, and electrons per gram of the rest.
+
+    H and He with ionization="saha"; the metals Li..Zn too when ``metals`` (default
+    :data:`METAL_IONIZATION`) is "saha"."""
+    metals = METAL_IONIZATION if metals is None else metals
+    if metals not in _METAL_CHOICES:
+        raise ValueError(f"metals must be one of {_METAL_CHOICES}, got {metals!r}")
+    top = max(ELEMENTS) if metals == "saha" else 2
     per_mass = comp.X / (comp.A * const.m_u)
     saha = {}
     fixed = 0.0
     for N, Z in zip(per_mass, comp.Z):
-        if ionization == "saha" and int(Z) in ELEMENTS and Z == int(Z):
+        if ionization == "saha" and Z == int(Z) and 1 <= int(Z) <= top:
             saha[int(Z)] = saha.get(int(Z), 0.0) + float(N)
         else:
             fixed += float(N * Z)
@@ -184,6 +200,38 @@ def _stages(saha, eta, T, n_full):
     return {z: ionization_stages(ELEMENTS[z], eta, T, n_full) for z in saha}
 
 
+class _MeanCharge:
+    """The mean charge of each Saha element and its eta-partial as functions of eta at fixed (rho, T), for the
+    numpy root: ln q_j = a_j - j eta with a_j = ln g_j + ln w_j - C_j / kT formed once (w depends on rho and T
+    only), one 2-d pass per element and call (the same values as ionization_stages' f_j, to rounding)."""
+
+    def __init__(self, saha, T, n_full):
+        self.terms = {}
+        zero = np.zeros_like(T)
+        for z in saha:
+            st = ionization_stages(ELEMENTS[z], zero, T, n_full)
+            kT = const.k_B * T
+            a = np.array([np.log(g) + lw - C / kT for g, lw, C in
+                          zip(ELEMENTS[z].weights, st.ln_w, st.cumulative)])
+            self.terms[z] = (a, np.arange(z + 1.0)[:, None])
+
+    def subset(self, keep):
+        out = _MeanCharge.__new__(_MeanCharge)
+        out.terms = {z: (a[:, keep], j) for z, (a, j) in self.terms.items()}
+        return out
+
+    def __call__(self, z, eta):
+        a, j = self.terms[z]
+        lq = a - j * eta
+        t = np.argmax(lq, axis=0)
+        top = np.take_along_axis(lq, t[None], axis=0)
+        q = np.exp(lq - top)
+        dj = j - t
+        s0 = q.sum(axis=0)
+        m = (dj * q).sum(axis=0) / s0
+        return t + m, -((dj * dj * q).sum(axis=0) / s0 - m * m)
+
+
 def _solve_saha(n_full, rho, T, saha, fixed, electrons, pairs):
     """ln n_e from ln n_e = ln n_free(eta(n_e, T)) where ionization is incomplete (1-D arrays).
 
@@ -197,18 +245,30 @@ def _solve_saha(n_full, rho, T, saha, fixed, electrons, pairs):
     lo = np.log(rho * fixed) if fixed > 0 else np.full_like(y, -np.inf)
     active = np.arange(y.size)
     dx_old = np.full(y.size, np.inf)
+    metals = _MeanCharge(saha, T, n_full) if max(saha) > 2 else None
     for _ in range(_MAX_ITER):
         if active.size == 0:
             break
         ya = y[active]
         eta, deta_dn = _eta_at(np.exp(ya), T[active], electrons, pairs)
-        st = _stages(saha, eta, T[active], n_full[active])
-        # n_free and its eta-partial only, in the arithmetic order of _free_electrons (same values)
         ra = rho[active]
-        n_free = ra * (fixed + sum(saha[z] * st[z].mean_charge for z in saha))
-        nf_eta = ra * sum(saha[z] * sum(j * st[z].f_eta[j] for j in range(len(st[z].f))) for z in saha)
-        phi = ya - np.log(n_free)
-        slope = 1.0 - nf_eta / n_free * deta_dn * np.exp(ya)
+        if metals is not None:
+            # many stages: the mean charges from ln q_j formed once (_MeanCharge), not every stage's partials
+            mc = metals.subset(active)
+            zs = {z: mc(z, eta) for z in saha}
+            n_free = ra * (fixed + sum(saha[z] * zs[z][0] for z in saha))
+            nf_eta = ra * sum(saha[z] * zs[z][1] for z in saha)
+        else:
+            st = _stages(saha, eta, T[active], n_full[active])
+            # n_free and its eta-partial only, in the arithmetic order of _free_electrons (same values)
+            n_free = ra * (fixed + sum(saha[z] * st[z].mean_charge for z in saha))
+            nf_eta = ra * sum(saha[z] * sum(j * st[z].f_eta[j] for j in range(len(st[z].f))) for z in saha)
+        # where every ion's weight is below the smallest double (very cold, degenerate at this n_e: T < 1e3 K
+        # near 1 g cm^-3) n_free is 0: phi is +inf, the step the largest allowed (40 in ln n_e) downwards
+        some = n_free > 0.0
+        safe = np.where(some, n_free, 1.0)
+        phi = np.where(some, ya - np.log(safe), np.inf)
+        slope = np.where(some, 1.0 - nf_eta / safe * deta_dn * np.exp(ya), 1.0)
         done = np.abs(phi) < _NEWTON_TOL
         pos = phi > 0
         hi[active] = np.where(pos, ya, hi[active])
@@ -231,7 +291,8 @@ def _saha_density(n_full, r, t, saha, fixed, electrons, pairs):
     n_e = n_full.copy()
     st_full = electrons_at(n_full, t, electrons, pairs)
     n_free0 = _free_electrons(_stages(saha, st_full.eta, t, n_full), saha, fixed, r)[0]
-    incomplete = np.flatnonzero(np.log(n_full) - np.log(n_free0) > _NEWTON_TOL)
+    with np.errstate(divide="ignore"):                 # n_free0 = 0: every ion below the smallest double
+        incomplete = np.flatnonzero(np.log(n_full) - np.log(n_free0) > _NEWTON_TOL)
     if incomplete.size == 0:
         return n_e, st_full
     todo = incomplete
@@ -248,7 +309,7 @@ def _saha_density(n_full, r, t, saha, fixed, electrons, pairs):
 
 
 def matter(rho, T, comp: Composition, electrons: str, ionization: str, pairs: bool,
-           compiled: bool = True) -> MatterResult:
+           compiled: bool = True, metals: str | None = None) -> MatterResult:
     """Electrons + ions in ionization equilibrium at (rho, T), with exact derivatives.
 
     Parameters
@@ -268,11 +329,15 @@ def matter(rho, T, comp: Composition, electrons: str, ionization: str, pairs: bo
         (:func:`~thermoplane.physics.matter_kernel.matter_at_root`) where the compiled Saha pass solved the
         point (the default), or by the numpy passes of :func:`_post_root` everywhere (the reference of the
         tests; the same values to rounding).
+    metals : {"full", "saha"} or None
+        How the metals Li..Zn ionize with ionization="saha" (None: :data:`METAL_IONIZATION`): fully, or by
+        their own Saha stages (every stage of every metal, the pressure-ionization rule with each stage's
+        own size; the compiled passes sum only the stages within e^-40 of each element's largest).
     """
     shape = rho.shape
     r, t = rho.ravel(), T.ravel()
     pairs = bool(pairs) and electrons == "fermi"
-    saha, fixed = _saha_elements(comp, ionization)
+    saha, fixed = _saha_elements(comp, ionization, metals)
     N_full = float(np.sum(comp.X * comp.Z / (comp.A * const.m_u)))
     n_full = r * N_full
 
@@ -281,10 +346,12 @@ def matter(rho, T, comp: Composition, electrons: str, ionization: str, pairs: bo
     #    pair-free table holds the point, and everything after the root in a second compiled pass
     #    (physics.matter_kernel.matter_at_root); the numpy passes for the rest (positrons, outside the table)
     if saha and electrons == "fermi":
-        n_e, buf, ok = solve_saha_state(n_full, r, t, saha, fixed, ELEMENTS, pairs)
+        # with metals among the Saha elements, cool matter can hold fewer free electrons than the table's
+        # lowest density: the compiled reader's Boltzmann continuation takes those roots
+        below = max(saha) > 2
+        n_e, buf, ok = solve_saha_state(n_full, r, t, saha, fixed, ELEMENTS, pairs, below_table=below)
         rest = np.flatnonzero(~ok)
         if compiled:
-            assert max(saha) <= 2, "the compiled passes take H and He as Saha elements only"
             out = matter_at_root(r, t, n_full, n_e, buf, ok, comp, saha, fixed, ELEMENTS)
             # where every bound state is destroyed (T >= ALL_DESTROYED_T: most of the points with positrons)
             # the Saha equilibrium is full ionization exactly: the fully ionized passes, plus the energy of
@@ -322,7 +389,8 @@ def _result(fields, n_e, n_full, shape) -> MatterResult:
     return MatterResult(part=part, P_e=rs(fields["P_e"]), P_ion=rs(fields["P_ion"]), eta=rs(fields["eta"]),
                         n_net=rs(n_e), n_minus=rs(fields["n_minus"]), n_plus=rs(fields["n_plus"]),
                         n_full=rs(n_full), ion_H=rs(fields["ion_H"]), ion_He1=rs(fields["ion_He1"]),
-                        ion_He2=rs(fields["ion_He2"]), mean_Z=rs(fields["mean_Z"]))
+                        ion_He2=rs(fields["ion_He2"]), mean_Z=rs(fields["mean_Z"]),
+                        metal_electrons=rs(fields["metal_electrons"]))
 
 
 def _post_root(r, t, n_full, n, es: ElectronState, comp: Composition, saha, fixed) -> dict:
@@ -410,5 +478,7 @@ def _post_root(r, t, n_full, n, es: ElectronState, comp: Composition, saha, fixe
     fields.update(P_e=P_e, P_ion=P_ion, eta=eta, n_minus=gas.n_minus, n_plus=gas.n_plus,
                   ion_H=stages[1].f[1] if 1 in stages else one,
                   ion_He1=(stages[2].f[1] + stages[2].f[2]) if 2 in stages else one,
-                  ion_He2=stages[2].f[2] if 2 in stages else one, mean_Z=n_free / (r * N_nuc))
+                  ion_He2=stages[2].f[2] if 2 in stages else one, mean_Z=n_free / (r * N_nuc),
+                  metal_electrons=metal_electrons_fixed(comp, saha) + sum(saha[z] * stages[z].mean_charge
+                                                                          for z in saha if z > 2) + 0.0 * t)
     return fields

@@ -32,14 +32,15 @@ from numba import njit, prange
 
 from . import constants as const
 from .eos.parallel import serialized
-from .ionization import BOHR_RADIUS, S_COMPLETE, S_ONSET, THERMAL_DESTRUCTION_T
 from .planck_larkin import stage_sums_point
+from .ionization import BOHR_RADIUS, S_COMPLETE, S_ONSET, THERMAL_DESTRUCTION_T
+from .saha_kernel import element_arrays, keep_stage
 
-__all__ = ["FIELDS", "matter_at_root"]
+__all__ = ["FIELDS", "matter_at_root", "metal_electrons_fixed"]
 
 #: rows of the output of :func:`matter_at_root`, in this order
 FIELDS = ("P", "E", "S", "P_rho", "P_T", "E_rho", "E_T", "S_rho", "S_T", "P_e", "P_ion", "eta", "n_minus",
-          "n_plus", "ion_H", "ion_He1", "ion_He2", "mean_Z")
+          "n_plus", "ion_H", "ion_He1", "ion_He2", "mean_Z", "metal_electrons")
 
 _K = const.k_B
 _PACK = 4.0 * np.pi / 3.0                                   # times n_full, then BOHR_RADIUS**3, as numpy does
@@ -54,7 +55,7 @@ _H2 = const.h**2
 _LAM_DEN = 2.0 * np.pi * const.m_u * const.k_B
 _DESTROYED = -1.0e300
 #: rows of the per-element scratch: stage fractions and what the ion sums need of them
-_F, _LNFGW, _FETA, _FT, _FLN, _WT, _WLN, _EW, _ET, _ELN = range(10)
+_F, _LNFGW, _FETA, _FT, _FLN, _WT, _WLN, _EW, _ET, _ELN, _WIN = range(11)
 #: interleaved tasks and their blocks of points in the parallel loop (the points handed back cluster in the
 #: hot rows of a map: contiguous shares per thread would be unequal)
 TASKS = 64
@@ -94,57 +95,104 @@ def _exp(x):
 
 
 @njit(cache=True, error_model="numpy", inline="always")
-def _stages(e, Zi, lng, C, eta, kT, i_kT, i_T, gone, G, G_r, G_t, G_rt, G_tt, E_F, E_F_ln, pls, st):
-    """ionization_stages of element e (Zi <= 2; rows e of lng, C) at one point into st[e] (10 rows x 3
-    stages, rows _F...); returns the mean charge and its partials in eta, T, ln rho.
+def _rule_of_stage(s_rho, s_T):
+    """ionization._rule_of_stage at one point: G = b / (1 - b) of a stage at packing s_rho + s_T with its
+    partials G_r, G_t, G_rt, G_tt in ln rho and ln T, and whether the stage is gone (b = 1)."""
+    s = s_rho + s_T
+    if s <= S_ONSET:
+        return 0.0, 0.0, 0.0, 0.0, 0.0, False
+    b, db, d2b = _smooth_step(s)
+    if b >= 1.0 - 1e-12:
+        return 0.0, 0.0, 0.0, 0.0, 0.0, True
+    a_rho = s_rho / s
+    a_T = s_T / s
+    om = 1.0 - b
+    G = b / om
+    G_u = db / (om * om)
+    G_uu = d2b / (om * om) + 2.0 * (db * db) / (om * om * om)
+    u_r = a_rho
+    u_t = 4.0 * a_T
+    G_rt = G_uu * u_r * u_t - G_u * a_rho * u_t
+    G_tt = G_uu * (u_t * u_t) + 4.0 * G_u * u_t * a_rho
+    return G, G_u * u_r, G_u * u_t, G_rt, G_tt, False
 
-    f_j = q_j / sum q with q_j = exp(ln q_j - max ln q), as ionization_stages has it. pls: the Planck-Larkin
-    factors of the element's stages at this T and their ln T partials (physics.planck_larkin.stage_sums_point).
+
+@njit(cache=True, error_model="numpy", inline="always")
+def _stages(e, Zi, lng, C, r3, eta, i_kT, i_T, s_rho, s_T, E_F, E_F_ln, pls, st):
+    """ionization_stages of element e (rows e of lng, C, r3) at one point into st[e] (10 rows x stages, rows
+    _F...); returns the mean charge and its partials in eta, T, ln rho.
+
+    Each bound stage has its own packing r3_j s_rho + s_T. f_j = q_j / sum q with q_j = exp(ln q_j - max ln q);
+    stages that saha_kernel.keep_stage rejects get f_j = 0 (no exp; the caller skips them). pls[e]: the
+    Planck-Larkin factors of the element's stages at this T and their ln T partials (physics.planck_larkin).
     Arrays are indexed in place, never sliced (no array views per point)."""
-    lq0 = lq1 = lq2 = -math.inf
+    # pass 1: ln q_j of every stage (the rule's G alone, no partials), its largest, and the largest ion's
+    top = -math.inf
+    top_ion = -math.inf
+    t = 0
     for j in range(Zi + 1):
+        lnw = 0.0
+        if j < Zi:                     # the bare nucleus is never destroyed
+            lnw = pls[e, 0, j]
+            s_j = r3[e, j] * s_rho
+            if s_j + s_T > S_ONSET:
+                G, G_r, G_t, G_rt, G_tt, gone = _rule_of_stage(s_j, s_T)
+                lnw = _DESTROYED if gone else lnw - G * (C[e, Zi] - C[e, j] + (Zi - j) * E_F) * i_kT
+        lq = lng[e, j] + lnw - j * eta - C[e, j] * i_kT
+        st[e, _F, j] = lq                                  # ln q_j for now
+        if lq > top:
+            top = lq
+            t = j
+        if j >= 1 and lq > top_ion:
+            top_ion = lq
+    # pass 2: the stages kept (saha_kernel.keep_stage): q_j and the rule's ln w_j, E_w,j with partials; the
+    # first and last kept (row _WIN) bound every later loop over the stages
+    tot = 0.0
+    lo = Zi
+    hi = 0
+    for j in range(Zi + 1):
+        lq = st[e, _F, j]
+        if not keep_stage(j, lq, top, t, top_ion):
+            st[e, _F, j] = 0.0
+            continue
+        lo = min(lo, j)
+        hi = max(hi, j)
+        q = _exp(lq - top)
+        st[e, _F, j] = q
+        tot += q
         c_kT = C[e, j] * i_kT
-        if j == Zi:                    # the bare nucleus is never destroyed
-            lnw = 0.0
+        if j == Zi:
             w_T = 0.0
             st[e, _WLN, j] = 0.0
             st[e, _EW, j] = 0.0
             st[e, _ET, j] = 0.0
             st[e, _ELN, j] = 0.0
         else:
+            G, G_r, G_t, G_rt, G_tt, gone = _rule_of_stage(r3[e, j] * s_rho, s_T)
             # F_w = G D - kT Phi_j (ionization.py): D = (C_Z - C_j) + (Z - j) E_F, Phi_j the Planck-Larkin factor
             D = C[e, Zi] - C[e, j] + (Zi - j) * E_F
             D_r = (Zi - j) * E_F_ln
-            p1 = pls[1, j]
-            lnw = _DESTROYED if gone else -G * D * i_kT + pls[0, j]
+            p1 = pls[e, 1, j]
             w_T = ((G - G_t) * D * i_kT + p1) * i_T
             st[e, _WLN, j] = -(G_r * D + G * D_r) * i_kT
-            st[e, _EW, j] = 0.0 if gone else D * (G - G_t) + kT * p1
-            st[e, _ET, j] = 0.0 if gone else D * (G_t - G_tt) * i_T + _K * (p1 + pls[2, j])
+            st[e, _EW, j] = D * (G - G_t) + p1 / i_kT
+            st[e, _ET, j] = D * (G_t - G_tt) * i_T + _K * (p1 + pls[e, 2, j])
             st[e, _ELN, j] = D_r * (G - G_t) + D * (G_r - G_rt)
         st[e, _WT, j] = w_T
         st[e, _FT, j] = c_kT * i_T + w_T          # d ln q_j / dT for now
         st[e, _LNFGW, j] = -j * eta - c_kT                 # ln_f_gw + ln sum q, for now
-        lq = lng[e, j] + lnw - j * eta - c_kT
-        if j == 0:
-            lq0 = lq
-        elif j == 1:
-            lq1 = lq
-        else:
-            lq2 = lq
-    top = max(lq0, max(lq1, lq2))
-    q0 = _exp(lq0 - top)
-    q1 = _exp(lq1 - top)
-    q2 = _exp(lq2 - top) if Zi == 2 else 0.0
-    tot = q0 + q1 + q2
+    st[e, _WIN, 0] = lo
+    st[e, _WIN, 1] = hi
     ln_sum = top + math.log(tot)
     i_tot = 1.0 / tot
     m_eta = 0.0
     m_T = 0.0
     m_ln = 0.0
-    for j in range(Zi + 1):
-        f = (q0 if j == 0 else (q1 if j == 1 else q2)) * i_tot
+    for j in range(lo, hi + 1):
+        f = st[e, _F, j] * i_tot
         st[e, _F, j] = f
+        if f == 0.0:
+            continue
         st[e, _LNFGW, j] -= ln_sum
         m_eta += f * -float(j)
         m_T += f * st[e, _FT, j]
@@ -153,8 +201,10 @@ def _stages(e, Zi, lng, C, eta, kT, i_kT, i_T, gone, G, G_r, G_t, G_rt, G_tt, E_
     z_eta = 0.0
     z_T = 0.0
     z_ln = 0.0
-    for j in range(Zi + 1):
+    for j in range(lo, hi + 1):
         f = st[e, _F, j]
+        if f == 0.0:                   # not kept, or below the smallest double: its rows are never read
+            continue
         st[e, _FETA, j] = f * (-float(j) - m_eta)
         st[e, _FT, j] = f * (st[e, _FT, j] - m_T)
         st[e, _FLN, j] = f * (st[e, _WLN, j] - m_ln)
@@ -167,24 +217,20 @@ def _stages(e, Zi, lng, C, eta, kT, i_kT, i_T, gone, G, G_r, G_t, G_rt, G_tt, E_
 
 
 @njit(cache=True, error_model="numpy", inline="always")
-def _point(rho, T, n_full, n, buf, i, fixed, el_Z, el_N, el_lng, el_C, nuc_N, nuc_lnN, nuc_lnA15, nuc_el, N_nuc,
+def _point(rho, T, n_full, n, buf, i, fixed, fixed_metal, el_Z, el_N, el_lng, el_C, el_r3, nuc_N, nuc_lnN, nuc_lnA15, nuc_el, N_nuc,
            ln_xn_per_rho, st, pls, out):
-    """matter._post_root at point i: the electron gas buf[i] (electron_point layout) at n_e = n; into out[:, i].
-    pls[k]: the Planck-Larkin factors of element k at T (stage_sums_point)."""
+    """matter._post_root at point i: the electron gas buf[i] (electron_point layout) at n_e = n; into out[:, i]."""
     kT = _K * T
     # divisions are the costliest arithmetic here: multiply by reciprocals (the same to rounding)
     i_kT = 1.0 / kT
     i_T = 1.0 / T
     i_rho = 1.0 / rho
     i_n = 1.0 / n
-    # the pressure-ionization rule (ionization_stages): s, the step b and G = b / (1 - b) with partials
+    # the pressure-ionization rule (ionization_stages): the packing terms (each stage scales s_rho by its
+    # own size) and the Fermi energy of fully ionized matter
     s_rho = _PACK * n_full * _BOHR3
     tau = T / THERMAL_DESTRUCTION_T
     s_T = (tau * tau) * (tau * tau)
-    s = s_rho + s_T
-    b, db, d2b = _smooth_step(s)
-    a_rho = s_rho / s
-    a_T = s_T / s
     # cube root of 3 pi^2 n_full from ln rho (needed below anyway) and one Newton step, to rounding
     ln_r = math.log(rho)
     xn = _XF_NUM * n_full
@@ -193,31 +239,20 @@ def _point(rho, T, n_full, n, buf, i, fixed, el_Z, el_N, el_lng, el_C, nuc_N, nu
     root = math.sqrt(1.0 + x * x)
     E_F = _MEC2 * x * x / (root + 1.0)
     E_F_ln = _MEC2 * x * x / (3.0 * root)
-    gone = b >= 1.0 - 1e-12
-    if gone:
-        G = G_u = G_uu = 0.0
-    else:
-        om = 1.0 - b
-        G = b / om
-        G_u = db / (om * om)
-        G_uu = d2b / (om * om) + 2.0 * (db * db) / (om * om * om)
-    u_r = a_rho
-    u_t = 4.0 * a_T
-    G_r = G_u * u_r
-    G_t = G_u * u_t
-    G_rt = G_uu * u_r * u_t - G_u * a_rho * u_t
-    G_tt = G_uu * (u_t * u_t) + 4.0 * G_u * u_t * a_rho
 
     # stage fractions per Saha element, and the free electrons with partials (eta, T, ln rho)
     eta = buf[i, 0]
+    zmetal = fixed_metal
     zsum = 0.0
     d_eta = 0.0
     d_T = 0.0
     d_ln = 0.0
     for k in range(el_Z.size):
-        zb, z_eta, z_T, z_ln = _stages(k, el_Z[k], el_lng, el_C, eta, kT, i_kT, i_T, gone, G, G_r, G_t, G_rt, G_tt,
-                                       E_F, E_F_ln, pls[k], st)
+        zb, z_eta, z_T, z_ln = _stages(k, el_Z[k], el_lng, el_C, el_r3, eta, i_kT, i_T, s_rho, s_T, E_F, E_F_ln,
+                                       pls, st)
         zsum += el_N[k] * zb
+        if el_Z[k] > 2:
+            zmetal += el_N[k] * zb
         d_eta += el_N[k] * z_eta
         d_T += el_N[k] * z_T
         d_ln += el_N[k] * z_ln
@@ -273,8 +308,10 @@ def _point(rho, T, n_full, n, buf, i, fixed, el_Z, el_N, el_lng, el_C, nuc_N, nu
         if e < 0:
             Si += N_i * k * (2.5 - ln_nL3)
             continue
-        for j in range(el_Z[e] + 1):
+        for j in range(int(st[e, _WIN, 0]), int(st[e, _WIN, 1]) + 1):
             f = st[e, _F, j]
+            if f == 0.0:               # outside the window (WINDOW_CUT): every term below is 0
+                continue
             df_rho = st[e, _FLN, j] * i_rho + st[e, _FETA, j] * deta_drho
             df_T = st[e, _FT, j] + st[e, _FETA, j] * deta_dT
             inner = ln_nL3 + st[e, _LNFGW, j]
@@ -318,21 +355,22 @@ def _point(rho, T, n_full, n, buf, i, fixed, el_Z, el_N, el_lng, el_C, nuc_N, nu
     for e in range(el_Z.size):
         if el_Z[e] == 1:
             out[14, i] = st[e, _F, 1]
-        else:
+        elif el_Z[e] == 2:
             out[15, i] = st[e, _F, 1] + st[e, _F, 2]
             out[16, i] = st[e, _F, 2]
     out[17, i] = n_free / (rho * N_nuc)
+    out[18, i] = zmetal
 
 
 @njit(cache=True, parallel=True, error_model="numpy")
-def _many(rho, T, n_full, n_e, buf, ok, fixed, el_Z, el_N, el_lng, el_C, nuc_N, nuc_lnN, nuc_lnA15, nuc_el, N_nuc,
+def _many(rho, T, n_full, n_e, buf, ok, fixed, fixed_metal, el_Z, el_N, el_lng, el_C, el_r3, nuc_N, nuc_lnN, nuc_lnA15, nuc_el, N_nuc,
           ln_xn_per_rho, out):
     n = rho.size
     for c in prange(TASKS):
-        st = np.empty((el_Z.size, 10, 3))          # one scratch per task, reused point after point
+        st = np.empty((el_Z.size, 11, el_C.shape[1]))          # one scratch per task, reused point after point
         # the Planck-Larkin factors per element (physics.planck_larkin.stage_sums_point) depend on T alone:
         # formed again only where T changes (a map's rows share T)
-        pls = np.empty((el_Z.size, 3, 3))
+        pls = np.empty((el_Z.size, 3, el_C.shape[1]))
         last_T = math.nan
         for start in range(c * BLOCK, n, TASKS * BLOCK):
             for i in range(start, min(start + BLOCK, n)):
@@ -341,8 +379,15 @@ def _many(rho, T, n_full, n_e, buf, ok, fixed, el_Z, el_N, el_lng, el_C, nuc_N, 
                         for k in range(el_Z.size):
                             stage_sums_point(T[i], el_Z[k], el_C[k], pls[k])
                         last_T = T[i]
-                    _point(rho[i], T[i], n_full[i], n_e[i], buf, i, fixed, el_Z, el_N, el_lng, el_C, nuc_N,
+                    _point(rho[i], T[i], n_full[i], n_e[i], buf, i, fixed, fixed_metal, el_Z, el_N, el_lng, el_C,
+                           el_r3, nuc_N,
                            nuc_lnN, nuc_lnA15, nuc_el, N_nuc, ln_xn_per_rho, st, pls, out)
+
+
+def metal_electrons_fixed(comp, saha: dict) -> float:
+    """Free electrons per gram of the metals (Z > 2) that are not Saha elements (taken as fully ionized)."""
+    return float(sum(X * Z / (A * const.m_u) for X, A, Z in zip(comp.X, comp.A, comp.Z)
+                     if Z > 2 and not (int(Z) == Z and int(Z) in saha)))
 
 
 @serialized
@@ -356,15 +401,9 @@ def matter_at_root(rho, T, n_full, n_e, buf, ok, comp, saha: dict, fixed: float,
     Columns where ``ok`` is False are left unset (the caller fills them).
     """
     zs = list(saha)
-    if not zs or max(zs) > 2:
-        raise ValueError(f"the compiled post-root pass takes H and He as Saha elements only, got Z = {zs}")
-    el_Z = np.array(zs, dtype=np.int64)
-    el_N = np.array([saha[z] for z in zs], dtype=float)
-    el_lng = np.zeros((len(zs), 3))
-    el_C = np.zeros((len(zs), 3))
-    for k, z in enumerate(zs):
-        el_lng[k, :z + 1] = [np.log(g) for g in elements[z].weights]
-        el_C[k, :z + 1] = elements[z].cumulative_erg
+    if not zs:
+        raise ValueError("the compiled post-root pass needs at least one Saha element")
+    el_Z, el_N, el_lng, el_C, el_r3 = element_arrays(saha, elements, order=zs)
     per_mass = comp.X / (comp.A * const.m_u)
     nuc_N = np.asarray(per_mass, dtype=float)
     # the same scalar logs as matter._post_root takes
@@ -374,8 +413,9 @@ def matter_at_root(rho, T, n_full, n_e, buf, ok, comp, saha: dict, fixed: float,
                       dtype=np.int64)
     N_nuc = float(np.sum(per_mass))
     N_full = float(np.sum(comp.X * comp.Z / (comp.A * const.m_u)))      # n_full / rho, as matter.matter has it
+    fixed_metal = metal_electrons_fixed(comp, saha)
     out = np.empty((len(FIELDS), rho.size))
     _many(np.ascontiguousarray(rho), np.ascontiguousarray(T), np.ascontiguousarray(n_full),
-          np.ascontiguousarray(n_e), np.ascontiguousarray(buf), np.ascontiguousarray(ok), float(fixed), el_Z, el_N,
-          el_lng, el_C, nuc_N, nuc_lnN, nuc_lnA15, nuc_el, N_nuc, math.log(_XF_NUM * N_full), out)
+          np.ascontiguousarray(n_e), np.ascontiguousarray(buf), np.ascontiguousarray(ok), float(fixed), fixed_metal,
+          el_Z, el_N, el_lng, el_C, el_r3, nuc_N, nuc_lnN, nuc_lnA15, nuc_el, N_nuc, math.log(_XF_NUM * N_full), out)
     return out

@@ -74,8 +74,8 @@ FIELD_DESCRIPTIONS = {
     "ion_He2": "fraction of helium doubly ionized", "mean_Z": "mean free electrons per nucleus",
     "n_minus": "electron number density", "n_plus": "positron number density",
     "h2_fraction": "fraction of hydrogen nuclei bound in H2 (chemical picture only; 0 otherwise)",
-    "metal_electron_fraction": "fraction of the free electrons given by elements heavier than He (always "
-                               "fully ionized except in the chemical picture)",
+    "metal_electron_fraction": "fraction of the free electrons given by elements heavier than He (their own "
+                               "Saha stages for Li..Zn; fully ionized with ionization=\"full\")",
     "coexistence": "1 where two phases coexist (the chemical picture's plasma phase transition: common tangent "
                    "of F in V, P constant along the isotherm); 0 elsewhere",
     "crystallized": "1 where the ion crystal has the lower free energy, else 0",
@@ -243,16 +243,21 @@ def evaluate(rho, T, comp: Composition, **options) -> ThermoState:
         dE_drho=total.E_rho, dS_dT=total.S_T, ion_H=gas.ion_H, ion_He1=gas.ion_He1, ion_He2=gas.ion_He2,
         mean_Z=gas.mean_Z, n_minus=gas.n_minus, n_plus=gas.n_plus, crystallized=crystallized, T_p=T_p,
         melt_margin=melt_margin, h2_fraction=np.zeros_like(rho), coexistence=np.zeros_like(rho),
-        metal_electron_fraction=_metal_electron_fraction(rho, gas.n_net, comp),
+        metal_electron_fraction=_metal_electron_fraction(rho, gas.n_net, comp, gas.metal_electrons),
         c_V_ion=c_V_ion, c_V_e=resp["c_V"] - c_V_ion - rad.E_T, c_V_rad=rad.E_T, **resp)
 
 
-def _metal_electron_fraction(rho, n_free, comp: Composition) -> np.ndarray:
-    """Free electrons from elements heavier than He over all free electrons, where metals are fully ionized."""
-    heavy = comp.Z > 2
-    per_gram = float(np.sum(comp.X[heavy] * comp.Z[heavy] / (comp.A[heavy] * const.m_u)))
+def _metal_electron_fraction(rho, n_free, comp: Composition, metal_electrons=None) -> np.ndarray:
+    """Free electrons from elements heavier than He over all free electrons.
+
+    ``metal_electrons`` (per gram) is what the metals' own ionization stages give up (physics.matter: Saha
+    stages for Z = 3..30, fully ionized beyond and with ionization="full"); without it the metals are taken
+    as fully ionized."""
+    if metal_electrons is None:
+        heavy = comp.Z > 2
+        metal_electrons = float(np.sum(comp.X[heavy] * comp.Z[heavy] / (comp.A[heavy] * const.m_u)))
     with np.errstate(divide="ignore", invalid="ignore"):
-        return np.clip(rho * per_gram / n_free, 0.0, 1.0)
+        return np.clip(rho * metal_electrons / n_free, 0.0, 1.0)
 
 
 def _plasma_temperature(rho, T, comp: Composition) -> np.ndarray:
