@@ -57,8 +57,9 @@ def _add_physics(p: argparse.ArgumentParser) -> None:
     g = p.add_argument_group("equation of state (defaults: the full physics)")
     g.add_argument("--electrons", choices=ph.OPTIONS["electrons"], help="electron treatment")
     g.add_argument("--ionization", choices=ph.OPTIONS["ionization"],
-                   help="ionization treatment (chemical: the experimental chemical picture, one free energy "
-                        "with H2 and every ionization stage; slow, see the README)")
+                   help="ionization treatment (saha-metals: experimental, the metals Li..Zn by Saha too, ~3x "
+                        "slower; chemical: the experimental chemical picture, one free energy with H2 and every "
+                        "ionization stage; slow, see the README)")
     g.add_argument("--coulomb", action=argparse.BooleanOptionalAction, default=None,
                    help="Coulomb corrections")
     g.add_argument("--pairs", action=argparse.BooleanOptionalAction, default=None,

@@ -26,6 +26,10 @@ OPTION_HELP = {
     ("electrons", "classical"): "Electrons as a classical ideal gas, P_e = n_e k T: wrong once η > 0.",
     ("ionization", "saha"): "Saha equilibrium for H and He with pressure ionization at high density; "
                             "metals fully ionized.",
+    ("ionization", "saha-metals"): "Experimental: as Saha (H, He), and every metal (Li to Zn) ionizes by its own "
+                                   "Saha stages, so the free electrons of a cool photosphere come from the metals. "
+                                   "About three times slower; the metals' pressure-ionization bands break "
+                                   "ρ²(∂E/∂ρ)_T = P − T(∂P/∂T)_ρ above ~0.1 g cm⁻³ (see About).",
     ("ionization", "full"): "Every atom fully ionized everywhere: wrong in cool envelopes and atmospheres.",
     ("ionization", "chemical"): "Experimental: one free energy minimised over H₂, H, H⁺ and every ionization "
                                 "stage of every element, with pressure ionization from an excluded volume and "
@@ -34,7 +38,8 @@ OPTION_HELP = {
     "coulomb": "Electrostatic (Coulomb) correction to pressure and energy from a one-component-plasma fit.",
     "pairs": "Electron–positron pairs created thermally above about 10⁹ K.",
 }
-OPTION_LABELS = {"fermi": "Fermi–Dirac", "classical": "classical", "saha": "Saha (H, He)", "full": "full",
+OPTION_LABELS = {"fermi": "Fermi–Dirac", "classical": "classical", "saha": "Saha (H, He)",
+                 "saha-metals": "Saha with metals (experimental)", "full": "full",
                  "chemical": "chemical picture (experimental, slow)"}
 
 
@@ -261,13 +266,17 @@ def about_physics() -> list:
           "where ε_ν ≥ 10⁻² erg g⁻¹ s⁻¹. Electron-capture thresholds (A, Z) → (A, Z−1) of nuclides with at "
           "least 1 % of the mass: where the chemical potential of the T = 0 electron gas reaches "
           "Δ_atomic + m_e c² (AME2020 masses); no Coulomb lattice shift, no thermal tail, first capture only."),
-        P("Where it fails. No molecules or neutral metals (below about 10⁴ K at low density the results "
-          "are approximate; metal-rich mixtures such as C/O show P ≤ 0, grey, below ~2×10⁵ K from "
-          "~10⁻⁷ to ~25 g cm⁻³, their metals taken as fully ionized: use the chemical picture there); no neutronization in the equation of state (only its thresholds are drawn) and "
+        P("Where it fails. No molecules and, by default, no neutral metals (below about 10⁴ K at low density "
+          "the results are approximate; metal-rich mixtures such as C/O show P ≤ 0, grey, below ~2×10⁵ K from "
+          "~10⁻⁷ to ~25 g cm⁻³, their metals taken as fully ionized: use \"Saha with metals\" (experimental: "
+          "~3 times slower, and above ~0.1 g cm⁻³ the metals' pressure-ionization bands break the density "
+          "identity) or the chemical picture there); no neutronization in the equation of state (only its "
+          "thresholds are drawn) and "
           "no nuclear statistical equilibrium; the "
           "Coulomb and pressure-ionization treatments are approximate near ρ ~ 1–10 g cm⁻³ at low T (inside "
-          "the pressure-ionization band the thermodynamic identities hold only approximately); plain Saha "
-          "leaves a few per cent of H neutral near ρ ~ 1 g cm⁻³, T ~ 3×10⁶ K, where real matter is ionized; "
+          "the pressure-ionization band the thermodynamic identities hold only approximately); the Coulomb "
+          "lowering of ionization potentials is not modelled (the Planck–Larkin weight, not it, ionizes hot "
+          "dense hydrogen); "
           "the Coulomb term can exceed the ideal pressure with full ionization or classical electrons at low "
           "T; screening is weak screening only, so burning rates in dense, cool plasma are underestimated. "
           "Dense plasma: linear mixing (no mixing corrections, no phase separation of mixtures); the quantum "

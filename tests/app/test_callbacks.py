@@ -510,3 +510,18 @@ def test_map_figures_pass_plotly_validation(change):
     out = map_cb.update_map(**controls(**change))
     assert out["figure"] is not no_update, out
     go.Figure(out["figure"].to_plotly_json())            # raises ValueError on anything plotly.js does not know
+
+
+def test_saha_with_metals_is_offered_and_its_map_shows_the_metals_electrons():
+    # the experimental option is a radio of the physics panel, and its map of the metals' share of the free
+    # electrons differs from the default's where metals are not fully ionized (a cool photosphere)
+    from thermoplane.app.layout import build_layout
+    assert "Saha with metals (experimental)" in str(build_layout())
+    q = "metal_electron_fraction"
+    base = heatmap(map_cb.update_map(**controls(quantity=q, resolution=40))["figure"])
+    out = map_cb.update_map(**controls(quantity=q, resolution=40, ionization="saha-metals"))
+    assert out["phys-message"] == ""
+    metal = heatmap(out["figure"])
+    a, b = np.asarray(base.z, float), np.asarray(metal.z, float)
+    assert a.shape == b.shape
+    assert np.nanmax(np.abs(a - b)) > 0.1

@@ -82,6 +82,23 @@ def test_the_state_reports_the_metals_share_from_their_stages(monkeypatch):
     assert s.mean_Z[0] < 1e-3
 
 
+def test_the_saha_metals_option_is_the_same_equation_of_state():
+    # evaluate(ionization="saha-metals") is the default with the metals as Saha elements: the same numbers as
+    # the session-wide switch, and the photosphere's electrons come from the metals; the default keeps them
+    # fully ionized (the metals' share is then their full-ionization share, ~1 at 5000 K)
+    rho, T = np.array([1e-7, 1e-4, 3.0]), np.array([5000.0, 2e4, 1e5])
+    a = ph.evaluate(rho, T, SOLAR, ionization="saha-metals")
+    r = _matter(rho, T, SOLAR)
+    np.testing.assert_allclose(a.P_e + a.P_ion, r.part.P, rtol=1e-13)
+    np.testing.assert_allclose(a.mean_Z * np.sum(SOLAR.X / SOLAR.A), r.n_net / rho * const.m_u, rtol=1e-9)
+    assert a.metal_electron_fraction[0] > 0.95
+    d = ph.evaluate(rho, T, SOLAR)
+    assert d.metal_electron_fraction[0] > 0.99 and d.P_e[0] > 10.0 * a.P_e[0]
+    from thermoplane.physics import eos
+    assert ("ionization", "saha-metals") in eos.EXPERIMENTAL
+    assert "saha-metals" not in eos.IMPACT_OPTIONS["ionization"]
+
+
 @pytest.mark.parametrize("comp", [SOLAR, CO], ids=["solar", "C/O"])
 @pytest.mark.parametrize("rho, T", [(1e-4, 5e7), (1e6, 1e7), (1e2, 3e8), (1e8, 1e6)])
 def test_metals_are_fully_ionized_where_hot_or_dense(comp, rho, T):
