@@ -30,7 +30,7 @@ from . import constants as const
 from .electrons import _CN
 from .eos.electron_kernel import electron_arrays, electron_point
 from .eos.parallel import serialized
-from .planck_larkin import planck_larkin
+from .planck_larkin import stage_sums_point
 from .ionization import S_COMPLETE, S_ONSET, THERMAL_DESTRUCTION_T, BOHR_RADIUS
 
 __all__ = ["solve_saha_compiled", "solve_saha_state"]
@@ -84,16 +84,13 @@ def keep_stage(j, lq, top, t, top_ion):
 
 @njit(cache=True, error_model="numpy")
 def _fill_pl(T, el_Z, el_C, pl):
-    """pl[k, j] = the Planck-Larkin factor Phi_j = sum_{m >= j} phi(chi_m / kT) of stage j of element k
-    (physics.planck_larkin.stage_sums_point, row 0): a function of T alone, formed where T changes."""
-    kT = _K * T
+    """pl[k, j] = the Planck-Larkin factor Phi_j of stage j of element k at T (row 0 of
+    physics.planck_larkin.stage_sums_point): a function of T alone, formed where T changes."""
+    tmp = np.empty((3, el_C.shape[1]))
     for k in range(el_Z.size):
-        Zi = el_Z[k]
-        acc = 0.0
-        pl[k, Zi] = 0.0
-        for j in range(Zi - 1, -1, -1):
-            acc += planck_larkin((el_C[k, j + 1] - el_C[k, j]) / kT)[0]
-            pl[k, j] = acc
+        stage_sums_point(T, el_Z[k], el_C[k], tmp)
+        for j in range(el_Z[k] + 1):
+            pl[k, j] = tmp[0, j]
 
 
 @njit(cache=True, error_model="numpy")
